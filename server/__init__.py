@@ -1,0 +1,1 @@
+"""Server: delivers findings (command line, language server, output formats, reports)."""
