@@ -1,3 +1,4 @@
 """Grammar: the deck language's parser and resolved model.
 
-Text in, model out.  Never imports deckward.rules or deckward.server."""
+Text in, model out.  Never imports deckward.rules or deckward.server.
+"""

@@ -1,0 +1,451 @@
+"""Build the deck model from parse trees, checking keys and values.
+
+The grammar accepts any ``key = value``; this module knows which keys each
+block takes and what values they allow, so that a misspelt key or value gets
+a message that names the alternatives (``unknown-key``, ``invalid-value``,
+``duplicate-key``).
+"""
+from __future__ import annotations
+
+import difflib
+import re
+from typing import Callable, Optional
+
+from . import model as m
+from .findings import Finding, Severity, Span
+from .parser import ParseOutput, parse_text
+from .text_index import LineIndex
+
+MAX_EXPRESSION_DEPTH = 200
+_ORBITAL_RE = re.compile(r"^(homo|lumo)(?:\s*([+-])\s*(\d+))?$", re.IGNORECASE)
+_NAME_RE = re.compile(r"^[A-Za-z_][A-Za-z0-9_]*$")
+
+LEVEL_KEYS = ("method", "basis", "reference", "frozen_core")
+KEYS = {
+    "study": ("goal", "kind", "compare", "note"),
+    "geometry": ("units",),
+    "basis_set": ("from",),
+    "level": LEVEL_KEYS,
+    "state": ("geometry", "level", "charge", "multiplicity", "frequencies") + LEVEL_KEYS,
+}
+
+
+def did_you_mean(word: str, candidates, n: int = 1) -> str:
+    close = difflib.get_close_matches(word, list(candidates), n=n, cutoff=0.6)
+    if not close:
+        close = difflib.get_close_matches(word.lower(), [c.lower() for c in candidates], n=n, cutoff=0.6)
+    return f"; did you mean `{close[0]}`?" if close else ""
+
+
+class _Builder:
+    def __init__(self, path: str, text: str, index: LineIndex):
+        self.path = path
+        self.text = text
+        self.index = index
+        self.findings: list[Finding] = []
+
+    # -- helpers ----------------------------------------------------------
+    def span_of(self, node, base: int, limit: int) -> Span:
+        if hasattr(node, "start_pos"):  # a token
+            start, end = node.start_pos, node.end_pos
+        else:
+            meta = node.meta
+            if getattr(meta, "empty", True):
+                return self.index.span(base, base)
+            start, end = meta.start_pos, meta.end_pos
+        start = min(start, limit)
+        end = min(end, limit)
+        return self.index.span(base + start, base + end)
+
+    def error(self, rule: str, span: Span, message: str) -> None:
+        self.findings.append(Finding(rule, Severity.ERROR, message, span))
+
+    # -- statements -------------------------------------------------------
+    def build(self, out: ParseOutput) -> m.Deck:
+        parts: dict[str, list] = {k: [] for k in ("uses", "study", "geometries", "basis_sets", "levels", "states", "derives")}
+        statement_spans = []
+        for st in out.statements:
+            base, limit = st.chunk.start, st.chunk.end - st.chunk.start
+            tree = st.tree
+            sp = lambda node: self.span_of(node, base, limit)  # noqa: E731
+            statement_spans.append(sp(tree))
+            kind = tree.data
+            try:
+                if kind == "use_stmt":
+                    parts["uses"].append(self.use(tree, sp))
+                elif kind == "study_stmt":
+                    study = self.study(tree, sp)
+                    if parts["study"]:
+                        self.error("duplicate-name", study.keyword_span, "a deck has at most one `study`; this is the second")
+                    else:
+                        parts["study"].append(study)
+                elif kind == "geometry_stmt":
+                    parts["geometries"].append(self.geometry(tree, sp))
+                elif kind == "basis_set_stmt":
+                    parts["basis_sets"].append(self.basis_set(tree, sp))
+                elif kind == "level_stmt":
+                    parts["levels"].append(self.level(tree, sp))
+                elif kind == "state_stmt":
+                    parts["states"].append(self.state(tree, sp))
+                elif kind == "derive_stmt":
+                    d = self.derive(tree, sp)
+                    if d is not None:
+                        parts["derives"].append(d)
+            except RecursionError:
+                self.error("syntax-error", sp(tree), "the statement is nested too deeply to read")
+        comments = tuple(
+            m.Comment(self.text[s + 1 : e], self.index.span(s, e), own) for s, e, own in out.comments
+        )
+        broken = frozenset(c.name for c in out.broken if c.name)
+        return m.Deck(
+            path=self.path,
+            text=self.text,
+            uses=tuple(parts["uses"]),
+            study=parts["study"][0] if parts["study"] else None,
+            geometries=tuple(parts["geometries"]),
+            basis_sets=tuple(parts["basis_sets"]),
+            levels=tuple(parts["levels"]),
+            states=tuple(parts["states"]),
+            derives=tuple(parts["derives"]),
+            comments=comments,
+            statement_spans=tuple(statement_spans),
+            broken_names=broken,
+        )
+
+    def use(self, tree, sp) -> m.Use:
+        tok = tree.children[1]
+        return m.Use(m.Located(_unquote(tok), sp(tok)), sp(tree))
+
+    def settings(self, block: str, items, sp) -> dict[str, tuple]:
+        """key -> (key token, value tree) for the block's settings, reporting
+        unknown and repeated keys."""
+        allowed = KEYS[block]
+        found: dict[str, tuple] = {}
+        for item in items:
+            if getattr(item, "data", None) != "setting":
+                continue
+            key_tok, value = item.children
+            key = str(key_tok).lower()
+            if key not in allowed:
+                self.error(
+                    "unknown-key",
+                    sp(key_tok),
+                    f"`{key_tok}` is not a key of a {block} block (keys: {', '.join(allowed)})"
+                    + did_you_mean(key, allowed),
+                )
+                continue
+            if key in found:
+                first_line = sp(found[key][0]).line
+                self.error("duplicate-key", sp(key_tok), f"`{key}` is set twice in this {block} block (first on line {first_line})")
+                continue
+            found[key] = (key_tok, value)
+        return found
+
+    # -- values -----------------------------------------------------------
+    def word(self, value, sp, what: str) -> Optional[m.Located[str]]:
+        kind = value.data
+        if kind in ("word_value", "string_value", "number_value"):
+            tok = value.children[0]
+            text = _unquote(tok) if kind == "string_value" else str(tok)
+            return m.Located(text, sp(tok))
+        self.error("invalid-value", sp(value), f"{what} must be a single word here")
+        return None
+
+    def enum(self, value, sp, key: str, choices) -> Optional[m.Located[str]]:
+        w = self.word(value, sp, f"`{key}`")
+        if w is None:
+            return None
+        low = w.value.lower()
+        if low not in choices:
+            self.error(
+                "invalid-value",
+                w.span,
+                f"`{w.value}` is not a value of `{key}` (values: {' | '.join(choices)})" + did_you_mean(low, choices),
+            )
+            return None
+        return m.Located(low, w.span)
+
+    def boolean(self, value, sp, key: str) -> Optional[m.Located[bool]]:
+        w = self.enum(value, sp, key, ("true", "false"))
+        return None if w is None else m.Located(w.value == "true", w.span)
+
+    def integer(self, value, sp, key: str, minimum: Optional[int] = None) -> Optional[m.Located[int]]:
+        if value.data != "number_value":
+            self.error("invalid-value", sp(value), f"`{key}` must be a whole number")
+            return None
+        tok = value.children[0]
+        try:
+            number = float(tok)
+        except ValueError:
+            number = float("nan")
+        if not number.is_integer() or abs(number) > 10**6:
+            self.error("invalid-value", sp(tok), f"`{key}` must be a whole number, not `{tok}`")
+            return None
+        if minimum is not None and number < minimum:
+            self.error("invalid-value", sp(tok), f"`{key}` must be at least {minimum}, not `{tok}`")
+            return None
+        return m.Located(int(number), sp(tok))
+
+    def name_ref(self, value, sp, key: str) -> Optional[m.Located[str]]:
+        w = self.word(value, sp, f"`{key}`")
+        if w is None:
+            return None
+        if not _NAME_RE.match(w.value) or value.data != "word_value":
+            self.error("invalid-value", w.span, f"`{key}` must name a {key} defined in the deck, not `{w.value}`")
+            return None
+        return w
+
+    def basis_spec(self, value, sp, key: str) -> Optional[m.BasisSpec]:
+        if value.data == "map_value":
+            entries = []
+            default = None
+            seen = {}
+            for entry in value.children:
+                if getattr(entry, "data", None) != "map_entry":
+                    continue
+                k_tok, v_tok = entry.children
+                v = m.Located(_unquote(v_tok) if v_tok.type == "STRING" else str(v_tok), sp(v_tok))
+                k = m.Located(str(k_tok), sp(k_tok))
+                low = k.value.lower()
+                if low in seen:
+                    self.error("duplicate-key", k.span, f"`{k.value}` appears twice in this map (first on line {seen[low]})")
+                    continue
+                seen[low] = k.span.line
+                if low == "default":
+                    default = v
+                else:
+                    entries.append((k, v))
+            return m.BasisSpec(default, tuple(entries), sp(value))
+        w = self.word(value, sp, f"`{key}`")
+        if w is None:
+            return None
+        return m.BasisSpec(w, (), w.span)
+
+    def level_settings(self, found, sp) -> m.LevelSettings:
+        method = reference = frozen = basis = None
+        if "method" in found:
+            method = self.word(found["method"][1], sp, "`method`")
+        if "basis" in found:
+            basis = self.basis_spec(found["basis"][1], sp, "basis")
+        if "reference" in found:
+            reference = self.enum(found["reference"][1], sp, "reference", m.REFERENCES)
+        if "frozen_core" in found:
+            frozen = self.boolean(found["frozen_core"][1], sp, "frozen_core")
+        return m.LevelSettings(method, basis, reference, frozen)
+
+    # -- blocks -----------------------------------------------------------
+    def study(self, tree, sp) -> m.Study:
+        kids = tree.children
+        title = None
+        if len(kids) > 1 and getattr(kids[1], "type", None) == "STRING":
+            title = m.Located(_unquote(kids[1]), sp(kids[1]))
+        found = self.settings("study", kids, sp)
+        get = lambda k, choices: self.enum(found[k][1], sp, k, choices) if k in found else None  # noqa: E731
+        note = self.word(found["note"][1], sp, "`note`") if "note" in found else None
+        return m.Study(
+            sp(tree), sp(kids[0]), title, get("goal", m.GOALS), get("kind", m.KINDS), get("compare", m.COMPARES), note
+        )
+
+    def geometry(self, tree, sp) -> m.Geometry:
+        name_tok = tree.children[1]
+        items = tree.children[3:-1]
+        found = self.settings("geometry", items, sp)
+        units = self.enum(found["units"][1], sp, "units", m.UNITS_LENGTH) if "units" in found else None
+        atoms = []
+        for item in items:
+            if getattr(item, "data", None) != "atom":
+                continue
+            sym, x, y, z, *ghost = item.children
+            atoms.append(
+                m.Atom(
+                    m.Located(str(sym), sp(sym)),
+                    (float(x), float(y), float(z)),
+                    (sp(x), sp(y), sp(z)),
+                    bool(ghost),
+                    sp(item),
+                )
+            )
+        lb, rb = tree.children[2], tree.children[-1]
+        body = self.index.span(sp(lb).end, max(sp(lb).end, sp(rb).start))
+        return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body)
+
+    def basis_set(self, tree, sp) -> m.BasisSet:
+        name_tok = tree.children[1]
+        items = tree.children[3:-1]
+        found = self.settings("basis_set", items, sp)
+        source = self.basis_spec(found["from"][1], sp, "from") if "from" in found else None
+        shells = []
+        for item in items:
+            if getattr(item, "data", None) != "add_shell":
+                continue
+            _, el, letter, exp = item.children
+            if str(letter).lower() not in m.SHELL_LETTERS or len(str(letter)) != 1:
+                self.error(
+                    "invalid-value", sp(letter), f"`{letter}` is not a shell letter (s, p, d, f, g, h, i)"
+                )
+                continue
+            value = float(exp)
+            if not value > 0:
+                self.error("invalid-value", sp(exp), f"an exponent must be positive, not `{exp}`")
+                continue
+            shells.append(
+                m.Shell(m.Located(str(el), sp(el)), m.Located(str(letter), sp(letter)), m.Located(value, sp(exp)), sp(item))
+            )
+        return m.BasisSet(m.Located(str(name_tok), sp(name_tok)), sp(tree), source, tuple(shells))
+
+    def level(self, tree, sp) -> m.Level:
+        name_tok = tree.children[1]
+        found = self.settings("level", tree.children[3:-1], sp)
+        return m.Level(m.Located(str(name_tok), sp(name_tok)), sp(tree), self.level_settings(found, sp))
+
+    def state(self, tree, sp) -> m.State:
+        name_tok = tree.children[1]
+        items = tree.children[3:-1]
+        found = self.settings("state", items, sp)
+        geometry = None
+        if "geometry" in found:
+            value = found["geometry"][1]
+            if value.data == "optimize_value":
+                name = value.children[1]
+                geometry = m.GeometryRef(m.Located(str(name), sp(name)), True, sp(value))
+            else:
+                ref = self.name_ref(value, sp, "geometry")
+                if ref is not None:
+                    geometry = m.GeometryRef(ref, False, ref.span)
+        level = self.name_ref(found["level"][1], sp, "level") if "level" in found else None
+        charge = self.integer(found["charge"][1], sp, "charge") if "charge" in found else None
+        mult = self.integer(found["multiplicity"][1], sp, "multiplicity", minimum=1) if "multiplicity" in found else None
+        freq = self.boolean(found["frequencies"][1], sp, "frequencies") if "frequencies" in found else None
+        last_end = sp(tree.children[2]).end
+        for item in items:
+            last_end = max(last_end, sp(item).end)
+        return m.State(
+            m.Located(str(name_tok), sp(name_tok)),
+            sp(tree),
+            geometry,
+            level,
+            charge,
+            mult,
+            freq,
+            self.level_settings(found, sp),
+            last_end,
+        )
+
+    def derive(self, tree, sp) -> Optional[m.Derive]:
+        kids = tree.children
+        name_tok = kids[1]
+        i = 2
+        quantity = None
+        if getattr(kids[i], "type", None) == "AS":
+            q = kids[i + 1]
+            low = str(q).lower()
+            if low in m.QUANTITIES:
+                quantity = m.Located(low, sp(q))
+            else:
+                self.error(
+                    "invalid-value",
+                    sp(q),
+                    f"`{q}` is not a quantity (quantities: {', '.join(m.QUANTITIES)})" + did_you_mean(low, m.QUANTITIES),
+                )
+            i += 2
+        expr_tree = kids[i]
+        unit = None
+        if i + 1 < len(kids) and getattr(kids[i + 1], "type", None) == "IN":
+            u = kids[i + 2]
+            low = str(u).lower()
+            if low in m.ENERGY_UNITS:
+                unit = m.Located(low, sp(u))
+            else:
+                self.error(
+                    "invalid-value",
+                    sp(u),
+                    f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})" + did_you_mean(low, m.ENERGY_UNITS),
+                )
+        if _depth(expr_tree) > MAX_EXPRESSION_DEPTH:
+            self.error("syntax-error", sp(expr_tree), f"the expression is nested more than {MAX_EXPRESSION_DEPTH} levels deep")
+            return None
+        expr = self.expr(expr_tree, sp)
+        if expr is None:
+            return None
+        return m.Derive(m.Located(str(name_tok), sp(name_tok)), sp(tree), quantity, expr, unit)
+
+    def expr(self, t, sp) -> Optional[m.Expr]:
+        kind = t.data
+        if kind == "number":
+            return m.Number(float(t.children[0]), sp(t))
+        if kind == "energy":
+            name = t.children[1]
+            return m.EnergyOf(m.Located(str(name), sp(name)), sp(t))
+        if kind == "orbital":
+            _, state, orb, *spin = t.children
+            match = _ORBITAL_RE.match(str(orb))
+            if not match:
+                self.error(
+                    "invalid-value",
+                    sp(orb),
+                    f"`{orb}` is not an orbital (homo, lumo, homo-N, lumo+N)" + did_you_mean(str(orb).lower(), ("homo", "lumo")),
+                )
+                return None
+            which, sign, count = match.groups()
+            offset = 0
+            if count:
+                offset = int(count) * (1 if sign == "+" else -1)
+                if (which.lower() == "homo" and offset > 0) or (which.lower() == "lumo" and offset < 0):
+                    self.error(
+                        "invalid-value",
+                        sp(orb),
+                        f"`{orb}`: write orbitals below the HOMO as homo-N and above the LUMO as lumo+N",
+                    )
+                    return None
+            spin_loc = None
+            if spin:
+                s = str(spin[0]).lower()
+                if s not in m.SPINS:
+                    self.error("invalid-value", sp(spin[0]), f"`{spin[0]}` is not a spin (alpha, beta)")
+                    return None
+                spin_loc = m.Located(s, sp(spin[0]))
+            return m.OrbitalOf(m.Located(str(state), sp(state)), m.Located(which.lower(), sp(orb)), offset, spin_loc, sp(t))
+        if kind in ("neg", "pos"):
+            operand = self.expr(t.children[1], sp)
+            return None if operand is None else m.Unary("-" if kind == "neg" else "+", operand, sp(t))
+        if kind in ("add", "sub", "mul", "div"):
+            left = self.expr(t.children[0], sp)
+            right = self.expr(t.children[2], sp)
+            if left is None or right is None:
+                return None
+            return m.Binary({"add": "+", "sub": "-", "mul": "*", "div": "/"}[kind], left, right, sp(t))
+        if kind == "sum" or len(t.children) == 1:  # parenthesised
+            return self.expr(t.children[0], sp)
+        return None
+
+
+def _depth(tree) -> int:
+    """Nesting depth of a tree, computed without recursion."""
+    best = 0
+    stack = [(tree, 1)]
+    while stack:
+        node, d = stack.pop()
+        best = max(best, d)
+        if best > MAX_EXPRESSION_DEPTH:
+            return best
+        for c in getattr(node, "children", ()):
+            if hasattr(c, "children"):
+                stack.append((c, d + 1))
+    return best
+
+
+def _unquote(tok) -> str:
+    s = str(tok)
+    if len(s) >= 2 and s[0] == '"' and s[-1] == '"':
+        s = s[1:-1]
+    return s.replace('\\"', '"').replace("\\\\", "\\")
+
+
+def build_deck(path: str, text: str) -> tuple[m.Deck, list[Finding], LineIndex]:
+    """Parse and build one deck file: (deck, findings, line index)."""
+    index = LineIndex(text, path)
+    out = parse_text(text, index)
+    builder = _Builder(path, text, index)
+    deck = builder.build(out)
+    findings = list(out.findings) + builder.findings
+    return deck, findings, index

@@ -1,0 +1,236 @@
+"""Parse deck text into Lark trees, one statement at a time, with recovery.
+
+``parse_text`` never raises: every problem becomes a ``syntax-error``
+finding with a located message saying what was expected and what was found.
+The Lark parser tables are cached on disk (keyed by the grammar and the Lark
+version), so starting the command line or the editor does not rebuild them.
+"""
+from __future__ import annotations
+
+import hashlib
+import os
+import tempfile
+from dataclasses import dataclass
+from importlib import resources
+from typing import Optional
+
+from .findings import Finding, Severity
+from .scanner import STATEMENT_KEYWORDS, Chunk, scan
+from .text_index import LineIndex
+
+MAX_SYNTAX_FINDINGS = 50
+MAX_SKIPS_PER_STATEMENT = 25
+
+_parser = None
+
+
+def grammar_text() -> str:
+    return resources.files("deckward.grammar").joinpath("deck.lark").read_text(encoding="utf-8")
+
+
+def _cache_dir() -> str:
+    base = os.environ.get("DECKWARD_CACHE_DIR") or os.environ.get("XDG_CACHE_HOME") or os.path.join(
+        os.path.expanduser("~"), ".cache"
+    )
+    if not os.environ.get("DECKWARD_CACHE_DIR"):
+        base = os.path.join(base, "deckward")
+    return base
+
+
+def get_parser():
+    """The shared Lark parser, built once per process from the on-disk cache."""
+    global _parser
+    if _parser is not None:
+        return _parser
+    import lark
+
+    text = grammar_text()
+    options = dict(parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=False)
+    digest = hashlib.sha256((text + lark.__version__).encode()).hexdigest()[:16]
+    for folder in (_cache_dir(), tempfile.gettempdir()):
+        try:
+            os.makedirs(folder, exist_ok=True)
+            _parser = lark.Lark(text, cache=os.path.join(folder, f"grammar-{digest}.lark-cache"), **options)
+            return _parser
+        except Exception:  # an unwritable or corrupt cache: try the next place
+            continue
+    _parser = lark.Lark(text, **options)
+    return _parser
+
+
+# Human names of terminals, for "expected ..." messages.
+_TERMINAL_NAMES = {
+    "NAME": "a name",
+    "STRING": "a quoted string",
+    "VALUE_NUMBER": "a number",
+    "WORD": "a value",
+    "COORD": "a coordinate",
+    "NUMBER": "a number",
+    "ORBITAL_REF": "an orbital (homo, lumo, homo-N, lumo+N)",
+    "UNIT": "a unit",
+    "LBRACE": "`{`",
+    "RBRACE": "`}`",
+    "LPAR": "`(`",
+    "RPAR": "`)`",
+    "EQUAL": "`=`",
+    "COMMA": "`,`",
+    "COLON": "`:`",
+    "PLUS": "`+`",
+    "MINUS": "`-`",
+    "STAR": "`*`",
+    "SLASH": "`/`",
+    "GHOST": "`ghost`",
+    "OPTIMIZE": "`optimize(`",
+    "$END": "the end of the file",
+}
+for _kw in STATEMENT_KEYWORDS | {"add", "as", "in", "energy", "orbital"}:
+    _TERMINAL_NAMES[_kw.upper()] = f"`{_kw}`"
+
+_STATEMENT_START = {k.upper() for k in STATEMENT_KEYWORDS}
+
+
+def describe_expected(expected) -> str:
+    names = set(expected)
+    parts = []
+    if _STATEMENT_START <= names:
+        parts.append("a statement (use, study, geometry, basis_set, level, state, derive)")
+        names -= _STATEMENT_START
+    # Value alternatives read better as one phrase.
+    if {"VALUE_NUMBER", "WORD", "STRING"} <= names:
+        parts.append("a value")
+        names -= {"VALUE_NUMBER", "WORD", "STRING", "LBRACE", "OPTIMIZE"}
+    for n in sorted(names, key=lambda s: (_TERMINAL_NAMES.get(s, s).startswith("`"), _TERMINAL_NAMES.get(s, s))):
+        if n == "$END" and parts:
+            continue
+        parts.append(_TERMINAL_NAMES.get(n, f"`{n.lower()}`"))
+    if not parts:
+        return "nothing more"
+    if len(parts) == 1:
+        return parts[0]
+    return ", ".join(parts[:-1]) + " or " + parts[-1]
+
+
+def _describe_token(token) -> str:
+    if token.type == "$END":
+        return "the end of the statement"
+    value = str(token)
+    if len(value) > 30:
+        value = value[:27] + "..."
+    return f"`{value}`"
+
+
+@dataclass
+class ParsedStatement:
+    tree: object  # lark.Tree of one statement
+    chunk: Chunk
+
+
+@dataclass
+class ParseOutput:
+    statements: list[ParsedStatement]
+    findings: list[Finding]
+    comments: list[tuple[int, int, bool]]
+    broken: list[Chunk]  # chunks that did not parse (their names are known)
+
+
+def parse_text(text: str, index: LineIndex) -> ParseOutput:
+    """Parse a whole deck; never raises."""
+    import lark
+
+    parser = get_parser()
+    scanned = scan(text)
+    findings: list[Finding] = []
+    statements: list[ParsedStatement] = []
+    broken: list[Chunk] = []
+
+    def report(start: int, end: int, message: str) -> None:
+        if len(findings) < MAX_SYNTAX_FINDINGS:
+            findings.append(Finding("syntax-error", Severity.ERROR, message, index.span(start, end)))
+
+    for block, where, next_keyword in scanned.unclosed:
+        line, _ = index.position(block.brace_start)
+        what = f"the {block.keyword} block" if block.keyword else "the block"
+        if next_keyword:
+            nline, _ = index.position(where)
+            msg = f"{what} opened on line {line} is not closed: expected `}}` before `{next_keyword}` on line {nline}"
+        else:
+            msg = f"{what} opened on line {line} is not closed: expected `}}` before the end of the file"
+        report(block.brace_start, block.brace_start + 1, msg)
+    for offset in scanned.stray_closers:
+        report(offset, offset + 1, "unexpected `}`: no block is open here")
+
+    for chunk in scanned.chunks:
+        if len(findings) >= MAX_SYNTAX_FINDINGS:
+            break
+        body = text[chunk.start : chunk.end]
+        if not body.strip():
+            continue
+        if chunk.stray_closers:
+            chars = list(body)
+            for off in chunk.stray_closers:
+                chars[off - chunk.start] = " "
+            body = "".join(chars)
+        if chunk.unclosed:
+            body = body + "\n" + "}" * len(chunk.unclosed)
+        chunk_len = chunk.end - chunk.start
+        errors: list = []
+
+        def on_error(e, _errors=errors):
+            _errors.append(e)
+            return len(_errors) <= MAX_SKIPS_PER_STATEMENT
+
+        try:
+            tree = parser.parse(body, on_error=on_error)
+        except lark.exceptions.UnexpectedInput as e:
+            if not errors or errors[-1] is not e:
+                errors.append(e)
+            tree = None
+        except Exception as e:  # a defect in the grammar machinery: still never a traceback
+            errors.append(e)
+            tree = None
+        seen_lines: set[int] = set()
+        for e in errors:
+            start, end, message = _error_location(e, body, chunk_len)
+            line = index.position(chunk.start + start)[0]
+            if line in seen_lines:
+                continue
+            seen_lines.add(line)
+            report(chunk.start + start, chunk.start + end, message)
+        if tree is None or (errors and not tree.children):
+            broken.append(chunk)
+            continue
+        if errors:
+            broken.append(chunk)
+        for child in tree.children:
+            statements.append(ParsedStatement(child, chunk))
+    return ParseOutput(statements, findings, scanned.comments, broken)
+
+
+def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
+    import lark
+
+    if isinstance(e, lark.exceptions.UnexpectedToken):
+        tok = e.token
+        if tok.type == "$END" or tok.start_pos is None:
+            pos = min(len(body.rstrip()), chunk_len)
+            return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
+        start = min(tok.start_pos, chunk_len)
+        end = min(tok.end_pos or start, chunk_len)
+        if tok.type == "RBRACE" and start >= chunk_len:  # a virtual closing brace
+            pos = min(len(body[:chunk_len].rstrip()), chunk_len)
+            return (max(0, pos - 1), pos, f"unexpected end of the block: expected {describe_expected(e.expected)}")
+        return start, end, f"expected {describe_expected(e.expected)} but found {_describe_token(tok)}"
+    if isinstance(e, lark.exceptions.UnexpectedCharacters):
+        pos = min(e.pos_in_stream, chunk_len)
+        ch = body[pos : pos + 1] if pos < len(body) else ""
+        if ch == '"':
+            return pos, pos + 1, "unterminated string: a `\"` opened here is not closed on its line"
+        allowed = getattr(e, "allowed", None) or set()
+        shown = repr(ch)[1:-1] if ch and not ch.isprintable() else ch
+        if allowed:
+            return pos, pos + 1, f"unexpected character `{shown}`: expected {describe_expected(allowed)}"
+        return pos, pos + 1, f"unexpected character `{shown}`"
+    if isinstance(e, lark.exceptions.UnexpectedEOF):
+        pos = min(len(body.rstrip()), chunk_len)
+        return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
+    return 0, 0, f"the statement could not be parsed ({type(e).__name__})"

@@ -1,0 +1,365 @@
+"""Resolution: load ``use`` files and link names into a ``Workspace``.
+
+A ``Workspace`` is one deck file with everything it uses: name tables,
+states linked to their geometry and level with per-state overrides applied,
+every reference (for go-to-definition and rename), and the findings of
+parsing and resolution.  Files are parsed once per ``Loader`` and shared by
+every deck that uses them.
+"""
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+from dataclasses import dataclass, field
+from typing import Callable, Optional
+
+from . import model as m
+from .build import build_deck, did_you_mean
+from .findings import Finding, Related, Severity, Span
+from .text_index import LineIndex
+
+MAX_FILE_BYTES = 20 * 1024 * 1024
+
+
+@dataclass(frozen=True)
+class ParsedFile:
+    path: str
+    deck: m.Deck
+    findings: tuple[Finding, ...]
+    index: LineIndex
+    digest: str  # sha256 of the text
+
+
+def decode(data: bytes, path: str) -> tuple[str, Optional[Finding]]:
+    """Text of a file, and a finding when it is not valid UTF-8 (the text is
+    then decoded with replacement characters so that checking goes on)."""
+    try:
+        return data.decode("utf-8"), None
+    except UnicodeDecodeError as e:
+        text = data.decode("utf-8", errors="replace")
+        prefix = data[: e.start].decode("utf-8", errors="replace")
+        index = LineIndex(text, path)
+        start = len(prefix)
+        return text, Finding(
+            "syntax-error",
+            Severity.ERROR,
+            f"the file is not valid UTF-8: byte 0x{data[e.start]:02x} cannot be decoded",
+            index.span(start, start + 1),
+        )
+
+
+class Loader:
+    """Parses files once and remembers them.
+
+    ``overlay`` maps absolute paths to the text of unsaved editor buffers;
+    everything else is read from disk."""
+
+    def __init__(self, overlay: Optional[dict[str, str]] = None) -> None:
+        self.overlay = overlay if overlay is not None else {}
+        self._files: dict[str, ParsedFile] = {}
+
+    def forget(self, path: str) -> None:
+        self._files.pop(os.path.abspath(path), None)
+
+    def parse_text(self, path: str, text: str) -> ParsedFile:
+        key = os.path.abspath(path)
+        digest = hashlib.sha256(text.encode("utf-8", "surrogatepass")).hexdigest()
+        cached = self._files.get(key)
+        if cached is not None and cached.digest == digest and cached.path == path:
+            return cached
+        deck, findings, index = build_deck(path, text)
+        parsed = ParsedFile(path, deck, tuple(findings), index, digest)
+        self._files[key] = parsed
+        return parsed
+
+    def load(self, path: str) -> ParsedFile:
+        """Parse the file at ``path`` (raises OSError if it cannot be read)."""
+        key = os.path.abspath(path)
+        if key in self.overlay:
+            return self.parse_text(path, self.overlay[key])
+        with open(path, "rb") as f:
+            data = f.read(MAX_FILE_BYTES + 1)
+        extra = None
+        if len(data) > MAX_FILE_BYTES:
+            data = data[:MAX_FILE_BYTES]
+            extra = f"the file is larger than {MAX_FILE_BYTES // (1024 * 1024)} MB; only the start was read"
+        text, bad = decode(data, path)
+        parsed = self.parse_text(path, text)
+        added = []
+        if bad is not None:
+            added.append(bad)
+        if extra is not None:
+            added.append(Finding("syntax-error", Severity.ERROR, extra, parsed.index.span(0, 0)))
+        if added:
+            parsed = ParsedFile(parsed.path, parsed.deck, tuple(added) + parsed.findings, parsed.index, parsed.digest)
+            self._files[key] = parsed
+        return parsed
+
+
+@dataclass(frozen=True)
+class Definition:
+    kind: str  # geometry | basis_set | level | state | derive
+    name: m.Located[str]
+    node: object
+    path: str
+
+
+@dataclass(frozen=True)
+class Reference:
+    """A use of a name: what it refers to (None when undefined)."""
+
+    name: m.Located[str]
+    kind: str  # the kind of definition expected
+    target: Optional[Definition]
+
+
+@dataclass(frozen=True)
+class ResolvedState:
+    state: m.State
+    path: str
+    geometry: Optional[m.Geometry]
+    optimize: bool
+    level: Optional[m.Level]
+    settings: m.LevelSettings  # the state's overrides over its level's settings
+
+    @property
+    def name(self) -> str:
+        return self.state.name.value
+
+    @property
+    def charge(self) -> int:
+        return self.state.charge.value if self.state.charge else 0
+
+    @property
+    def multiplicity(self) -> Optional[int]:
+        return self.state.multiplicity.value if self.state.multiplicity else None
+
+    @property
+    def reference(self) -> str:
+        """The effective reference; unset means restricted for a closed shell
+        and unrestricted for an open shell (the runner's default too)."""
+        if self.settings.reference is not None:
+            return self.settings.reference.value
+        return "restricted" if (self.multiplicity or 1) == 1 else "unrestricted"
+
+
+@dataclass(frozen=True)
+class Workspace:
+    """One deck and everything it uses, resolved."""
+
+    root: ParsedFile
+    files: tuple[ParsedFile, ...]  # root first, then used files in load order
+    root_dir: str
+    definitions: dict = field(hash=False)  # name -> Definition
+    states: dict = field(hash=False)  # name -> ResolvedState
+    references: tuple[Reference, ...] = ()
+    findings: tuple[Finding, ...] = ()  # parse findings of all files + resolution findings
+    broken_names: frozenset = frozenset()
+
+    @property
+    def path(self) -> str:
+        return self.root.path
+
+    @property
+    def study(self) -> Optional[m.Study]:
+        for f in self.files:
+            if f.deck.study is not None:
+                return f.deck.study
+        return None
+
+    def of_kind(self, kind: str) -> list[Definition]:
+        return [d for d in self.definitions.values() if d.kind == kind]
+
+    def geometry(self, name: str) -> Optional[m.Geometry]:
+        d = self.definitions.get(name)
+        return d.node if d is not None and d.kind == "geometry" else None
+
+    def level(self, name: str) -> Optional[m.Level]:
+        d = self.definitions.get(name)
+        return d.node if d is not None and d.kind == "level" else None
+
+    def basis_set(self, name: str) -> Optional[m.BasisSet]:
+        d = self.definitions.get(name)
+        return d.node if d is not None and d.kind == "basis_set" else None
+
+    @property
+    def derives(self) -> list[m.Derive]:
+        return [d.node for d in self.definitions.values() if d.kind == "derive"]
+
+    def file(self, path: str) -> Optional[ParsedFile]:
+        for f in self.files:
+            if f.path == path:
+                return f
+        return None
+
+    def quantity_of(self, derive: m.Derive) -> Optional[str]:
+        """What a derived number means: ``as``, else its name, else the goal."""
+        return quantity_of(derive, self.study)
+
+
+_IE_NAME = re.compile(r"^(v|a)?(ip|ie)(_|\d|$)|^ioni[sz]ation", re.IGNORECASE)
+_EA_NAME = re.compile(r"^(v|a)?ea(_|\d|$)|affinity", re.IGNORECASE)
+_GAP_NAME = re.compile(r"^gap", re.IGNORECASE)
+
+
+def quantity_of(derive: m.Derive, study: Optional[m.Study]) -> Optional[str]:
+    if derive.quantity is not None:
+        return derive.quantity.value
+    name = derive.name.value
+    if _IE_NAME.search(name):
+        return "ionization_energy"
+    if _EA_NAME.search(name):
+        return "electron_affinity"
+    if _GAP_NAME.search(name):
+        return "fundamental_gap"
+    if study is not None and study.goal is not None:
+        return study.goal.value
+    return None
+
+
+def workspace_root_for(path: str) -> str:
+    """The folder holding deckward.yaml at or above the file, else the
+    file's own folder."""
+    folder = os.path.dirname(os.path.abspath(path))
+    probe = folder
+    while True:
+        if os.path.isfile(os.path.join(probe, "deckward.yaml")):
+            return probe
+        parent = os.path.dirname(probe)
+        if parent == probe:
+            return folder
+        probe = parent
+
+
+def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] = None,
+            text: Optional[str] = None) -> Workspace:
+    """Load ``path`` (or ``text`` as that file), its ``use`` files, and link
+    every name.  Never raises for problems in the decks: they become
+    findings.  Raises OSError only when the root file cannot be read."""
+    loader = loader or Loader()
+    root = loader.parse_text(path, text) if text is not None else loader.load(path)
+    root_dir = os.path.realpath(root_dir or workspace_root_for(path))
+    findings: list[Finding] = list(root.findings)
+    files: list[ParsedFile] = [root]
+
+    # -- load use files (depth first, each once) -----------------------------
+    def visit(pf: ParsedFile, stack: tuple[str, ...]) -> None:
+        for use in pf.deck.uses:
+            target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
+            real = os.path.realpath(target)
+            where = use.path.span
+            if not _inside(real, root_dir):
+                findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                        f"`{use.path.value}` is outside the workspace root {_short(root_dir)}", where))
+                continue
+            if real in stack:
+                chain = " -> ".join(os.path.basename(p) for p in stack[stack.index(real):] + (real,))
+                findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                        f"`{use.path.value}` forms a cycle of use: {chain}", where))
+                continue
+            if any(os.path.realpath(f.path) == real for f in files):
+                continue
+            try:
+                used = loader.load(target)
+            except IsADirectoryError:
+                findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                        f"`{use.path.value}` is a folder, not a deck file", where))
+                continue
+            except OSError as e:
+                reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
+                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{use.path.value}` {reason}", where))
+                continue
+            files.append(used)
+            findings.extend(used.findings)
+            visit(used, stack + (real,))
+
+    visit(root, (os.path.realpath(root.path),))
+
+    # -- name table ------------------------------------------------------------
+    definitions: dict[str, Definition] = {}
+    broken = frozenset().union(*(f.deck.broken_names for f in files))
+    for pf in files:
+        for kind, name, node in pf.deck.definitions():
+            d = Definition(kind, name, node, pf.path)
+            first = definitions.get(name.value)
+            if first is None:
+                definitions[name.value] = d
+                continue
+            here, other = d, first
+            if first.path == root.path and d.path != root.path:
+                here, other = first, d
+            findings.append(Finding(
+                "duplicate-name", Severity.ERROR,
+                f"`{name.value}` is defined twice: as a {other.kind} on line {other.name.span.line}"
+                + ("" if other.path == here.path else f" of {os.path.basename(other.path)}")
+                + f" and as a {here.kind} here",
+                here.name.span,
+                related=(Related(other.name.span, f"`{name.value}` is first defined here"),),
+            ))
+
+    references: list[Reference] = []
+
+    def ref(name: m.Located[str], kind: str) -> Optional[Definition]:
+        d = definitions.get(name.value)
+        if d is not None and d.kind == kind:
+            references.append(Reference(name, kind, d))
+            return d
+        references.append(Reference(name, kind, None))
+        if name.value in broken:
+            return None
+        same_kind = [n for n, dd in definitions.items() if dd.kind == kind]
+        if d is not None:
+            msg = f"`{name.value}` is a {d.kind}, not a {kind}"
+            related = (Related(d.name.span, f"`{name.value}` is defined here"),)
+        else:
+            msg = f"no {kind} is named `{name.value}`" + did_you_mean(name.value, same_kind)
+            related = ()
+        findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related))
+        return None
+
+    states: dict[str, ResolvedState] = {}
+    for pf in files:
+        deck = pf.deck
+        for st in deck.states:
+            geometry = level = None
+            if st.geometry is not None:
+                gd = ref(st.geometry.name, "geometry")
+                geometry = gd.node if gd else None
+            if st.level is not None:
+                ld = ref(st.level, "level")
+                level = ld.node if ld else None
+            settings = st.overrides.merged_over(level.settings if level else m.LevelSettings())
+            if definitions.get(st.name.value) is not None and definitions[st.name.value].node is st:
+                states[st.name.value] = ResolvedState(st, pf.path, geometry, bool(st.geometry and st.geometry.optimize),
+                                                      level, settings)
+        for bs in deck.basis_sets:
+            if bs.source is not None:
+                for word in bs.source.words():
+                    if word.value in definitions and definitions[word.value].kind == "basis_set":
+                        references.append(Reference(word, "basis_set", definitions[word.value]))
+        for lv in list(deck.levels) + [s for s in deck.states]:
+            spec = lv.settings.basis if isinstance(lv, m.Level) else lv.overrides.basis
+            if spec is not None:
+                for word in spec.words():
+                    d = definitions.get(word.value)
+                    if d is not None and d.kind == "basis_set":
+                        references.append(Reference(word, "basis_set", d))
+        for dv in deck.derives:
+            for node in m.walk(dv.expr):
+                if isinstance(node, (m.EnergyOf, m.OrbitalOf)):
+                    ref(node.state, "state")
+
+    findings.sort(key=Finding.sort_key)
+    return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings), broken)
+
+
+def _inside(path: str, root: str) -> bool:
+    try:
+        return os.path.commonpath([path, root]) == root
+    except ValueError:
+        return False
+
+
+def _short(path: str) -> str:
+    return os.path.basename(path.rstrip(os.sep)) + os.sep if path else path

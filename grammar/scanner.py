@@ -1,0 +1,143 @@
+"""A light pre-scan of deck text: statement boundaries, comments, braces.
+
+The deck language is a sequence of independent statements, so the parser
+works statement by statement: a mistake in one statement cannot hide the
+next one, and a missing ``}`` is reported where its block was opened instead
+of at the end of the file.  The scanner knows just enough of the lexical
+rules (strings, comments, braces, parentheses, statement keywords) to find
+where statements start.
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+STATEMENT_KEYWORDS = frozenset({"use", "study", "geometry", "basis_set", "level", "state", "derive"})
+# Tokens after which a keyword-looking word is a name, not a new statement.
+_CONTINUATIONS = frozenset(STATEMENT_KEYWORDS | {"as", "in", "=", "(", ",", ":", "+", "-", "*", "/"})
+
+_TOKEN = re.compile(
+    r"""
+    (?P<ws>[ \t\f\r\ufeff]+)
+  | (?P<nl>\n)
+  | (?P<comment>\#[^\n]*)
+  | (?P<string>"(?:[^"\\\n]|\\.)*"?)
+  | (?P<ident>[A-Za-z_][A-Za-z0-9_]*)
+  | (?P<open>\{)
+  | (?P<close>\})
+  | (?P<popen>\()
+  | (?P<pclose>\))
+  | (?P<other>[^\sA-Za-z_{}()"\#]+|.)
+    """,
+    re.VERBOSE | re.DOTALL,
+)
+
+
+@dataclass(frozen=True)
+class OpenBlock:
+    keyword: str  # statement keyword that owns the block
+    keyword_start: int
+    brace_start: int
+
+
+@dataclass
+class Chunk:
+    """A stretch of text holding (at most) one statement."""
+
+    start: int
+    end: int
+    keyword: str | None = None  # statement keyword, lower case
+    name: str | None = None  # the statement's name, when it has one
+    unclosed: list[OpenBlock] = field(default_factory=list)  # blocks to close virtually
+    stray_closers: list[int] = field(default_factory=list)  # offsets of unmatched `}`
+
+
+@dataclass
+class ScanResult:
+    chunks: list[Chunk]
+    comments: list[tuple[int, int, bool]]  # (start, end, own_line)
+    # (block, offset where the next statement started or len(text) at EOF)
+    unclosed: list[tuple[OpenBlock, int, str | None]]
+    stray_closers: list[int]
+
+
+def scan(text: str) -> ScanResult:
+    tokens: list[tuple[str, int, int]] = []
+    comments: list[tuple[int, int, bool]] = []
+    line_has_token = False
+    for m in _TOKEN.finditer(text):
+        kind = m.lastgroup
+        if kind == "ws":
+            continue
+        if kind == "nl":
+            line_has_token = False
+            tokens.append(("nl", m.start(), m.end()))
+            continue
+        if kind == "comment":
+            comments.append((m.start(), m.end(), not line_has_token))
+            continue
+        line_has_token = True
+        tokens.append((kind, m.start(), m.end()))
+
+    chunks: list[Chunk] = [Chunk(0, len(text))]
+    unclosed_all: list[tuple[OpenBlock, int, str | None]] = []
+    strays: list[int] = []
+    blocks: list[OpenBlock] = []
+    parens = 0
+    prev = None  # previous significant token text (lower case)
+    at_line_start = True
+    current_keyword: tuple[str, int] | None = None
+    n = len(tokens)
+    for i, (kind, start, end) in enumerate(tokens):
+        if kind == "nl":
+            at_line_start = True
+            continue
+        value = text[start:end]
+        low = value.lower()
+        if kind == "ident" and low in STATEMENT_KEYWORDS and prev not in _CONTINUATIONS:
+            nxt = _next_significant(tokens, i + 1, n)
+            nxt_kind = nxt[0] if nxt else None
+            shaped = nxt_kind == "ident" or (low in ("use", "study") and nxt_kind == "string") or (
+                low == "study" and nxt_kind == "open"
+            )
+            if shaped and ((not blocks and parens == 0) or at_line_start):
+                if blocks:
+                    for b in blocks:
+                        unclosed_all.append((b, start, low))
+                    chunks[-1].unclosed.extend(blocks)
+                    blocks = []
+                parens = 0
+                chunks[-1].end = start
+                name = text[nxt[1] : nxt[2]] if nxt_kind == "ident" else None
+                chunks.append(Chunk(start, len(text), low, name))
+                current_keyword = (low, start)
+        if kind == "open":
+            kw = current_keyword or ("", start)
+            blocks.append(OpenBlock(kw[0], kw[1], start))
+        elif kind == "close":
+            if blocks:
+                blocks.pop()
+            else:
+                strays.append(start)
+                chunks[-1].stray_closers.append(start)
+        elif kind == "popen":
+            parens += 1
+        elif kind == "pclose":
+            parens = max(0, parens - 1)
+        prev = low if kind in ("ident", "other", "popen", "pclose", "open", "close") else kind
+        if kind == "other":
+            prev = value
+        at_line_start = False
+    if blocks:
+        for b in blocks:
+            unclosed_all.append((b, len(text), None))
+        chunks[-1].unclosed.extend(blocks)
+    return ScanResult(chunks, comments, unclosed_all, strays)
+
+
+def _next_significant(tokens, i, n):
+    while i < n:
+        if tokens[i][0] != "nl":
+            return tokens[i]
+        i += 1
+    return None

@@ -1,0 +1,555 @@
+"""Regenerate the chemistry data files from the installed PySCF.
+
+    python -m deckward.rules.build_data            # rewrite both data files
+    python -m deckward.rules.build_data --check    # exit 1 if they are stale
+
+The typing path (parser and static rules) must never import PySCF, which
+costs about half a second.  So the facts it needs -- element symbols and
+covalent radii, and what every library basis set yields for every element --
+are read once from PySCF here and stored as package data:
+
+- ``rules/data/elements.json``: symbol, atomic number, name and covalent
+  radius (angstrom) per element.
+- ``rules/data/basis_index.json.gz``: every basis name PySCF's bundled basis
+  library accepts, with per element the number of contracted shells per
+  angular momentum, the three smallest primitive exponents per angular
+  momentum, and whether an effective core potential comes with it.
+
+PySCF, when the optional basis_set_exchange package is installed, also
+fetches names and elements it does not ship from that package.  The index
+records only what PySCF itself ships, because the runner cannot count on the
+optional package being present.
+
+This module is the only place (besides probes and the runner) that imports
+PySCF, and it does so inside functions.
+"""
+
+from __future__ import annotations
+
+import argparse
+import contextlib
+import gzip
+import json
+import os
+import sys
+import warnings
+from pathlib import Path
+
+DATA_DIR = Path(__file__).resolve().parent / "data"
+ELEMENTS_FILE = DATA_DIR / "elements.json"
+BASIS_INDEX_FILE = DATA_DIR / "basis_index.json.gz"
+
+FORMAT_VERSION = 1
+N_SMALLEST = 3
+
+# Pople polarisation tokens PySCF understands inside parentheses, e.g.
+# 6-311++g(2df,2pd): each token names a file <base>-polarization-<token>.dat.
+POPLE_POLARIZATION_TOKENS = ("d", "f", "p", "2d", "3d", "2p", "3p")
+
+# Reference atom for deriving the zeta level from the data: oxygen is covered
+# by nearly every orbital basis and its p shells are all valence shells.
+ZETA_REFERENCE_ATOM = "O"
+
+
+# ---------------------------------------------------------------- elements
+
+
+def build_elements() -> dict:
+    """Element table from pyscf.data: symbol, Z, name, covalent radius (A).
+
+    PySCF stores the covalent radii of Cordero et al., Dalton Trans. 2008,
+    2832 in bohr (``radii.COVALENT = 1/BOHR * [values in angstrom]``), so
+    they are converted back with PySCF's own BOHR and rounded to the two
+    decimals the paper gives.  Elements past curium have no radius there.
+    """
+    import pyscf
+    from pyscf.data import elements, radii
+    from pyscf.lib.parameters import BOHR
+
+    rows = []
+    for z, symbol in enumerate(elements.ELEMENTS):
+        if z == 0:
+            continue  # ghost placeholder, handled by the deck language
+        radius = None
+        if z < len(radii.COVALENT):
+            radius = round(float(radii.COVALENT[z]) * BOHR, 4)
+        rows.append(
+            {
+                "symbol": symbol,
+                "z": z,
+                "name": elements.ATOMIC_NAMES[z],
+                "covalent_radius": radius,
+            }
+        )
+    return {
+        "format": FORMAT_VERSION,
+        "source": "pyscf.data.elements and pyscf.data.radii.COVALENT "
+        "(Cordero et al., Dalton Trans. 2008, 2832)",
+        "pyscf_version": pyscf.__version__,
+        "elements": rows,
+    }
+
+
+# ---------------------------------------------------------------- basis sets
+
+
+def normalize(word: str) -> str:
+    """PySCF's basis-name normalisation (pyscf.gto.basis._format_basis_name)."""
+    return word.lower().replace("-", "").replace("_", "").replace(" ", "")
+
+
+@contextlib.contextmanager
+def _pyscf_library_only():
+    """Switch off PySCF's fallback to basis_set_exchange while loading."""
+    from pyscf.gto.basis import bse
+
+    saved = bse.basis_set_exchange
+    bse.basis_set_exchange = None
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            yield
+    finally:
+        bse.basis_set_exchange = saved
+
+
+def _shell_primitives(shell):
+    """(l, exponents, number of contracted functions) of one PySCF shell."""
+    l = shell[0]
+    rows = shell[2:] if isinstance(shell[1], int) else shell[1:]
+    exponents = [float(r[0]) for r in rows]
+    n_contracted = len(rows[0]) - 1 if rows else 0
+    return l, exponents, n_contracted
+
+
+def element_record(shells, has_ecp: bool) -> list:
+    """Compact per-element record: [functions per l, smallest exps per l, ecp]."""
+    if not shells:
+        return None
+    lmax = max(s[0] for s in shells)
+    counts = [0] * (lmax + 1)
+    exps = [set() for _ in range(lmax + 1)]
+    for shell in shells:
+        l, exponents, n = _shell_primitives(shell)
+        counts[l] += n
+        exps[l].update(exponents)
+    smallest = [sorted(e)[:N_SMALLEST] for e in exps]
+    return [counts, smallest, 1 if has_ecp else 0]
+
+
+def _targets():
+    """Map of library target (file or module) -> ALIAS keys reaching it.
+
+    Keys that PySCF's own normalisation can never produce (for instance one
+    containing an underscore) are left out: no user word reaches them.
+    """
+    from pyscf.gto.basis import ALIAS, GTH_ALIAS
+
+    targets: dict = {}
+    for table, kind in ((ALIAS, "alias"), (GTH_ALIAS, "gth")):
+        for key, target in table.items():
+            if normalize(key) != key:
+                continue
+            tkey = (kind, target if isinstance(target, str) else tuple(target))
+            targets.setdefault(tkey, []).append(key)
+    return targets
+
+
+def _canonical_name(kind, target, keys) -> str:
+    """A readable lower-case name for a target, derived from its file name."""
+    first = target[-1] if isinstance(target, tuple) else target
+    stem = os.path.basename(first)
+    if "." in stem and not stem.endswith(".dat"):
+        stem = stem.rsplit(".", 1)[1]  # python module path like dyall-basis.dyall_2zp
+    stem = stem[:-4] if stem.endswith(".dat") else stem
+    name = stem.lower()
+    if first.startswith("pople-basis"):
+        if name.endswith("gss"):
+            name = name[:-2] + "**"
+        elif name.endswith("gs"):
+            name = name[:-1] + "*"
+    if normalize(name) in keys:
+        return name
+    return keys[0]
+
+
+def _load_shells(kind, target, symbol):
+    from pyscf.gto.basis import _BASIS_DIR, _GTH_BASIS_DIR, parse_cp2k, parse_nwchem
+    from pyscf.gto import basis as pyscf_basis
+    import importlib
+
+    if kind == "gth":
+        return parse_cp2k.load(os.path.join(_GTH_BASIS_DIR, target), symbol)
+    if isinstance(target, tuple):
+        shells = []
+        for f in target:
+            shells += parse_nwchem.load(os.path.join(_BASIS_DIR, f), symbol)
+        return shells
+    if "dat" in target:
+        return parse_nwchem.load(os.path.join(_BASIS_DIR, target), symbol)
+    mod = importlib.import_module("." + target, pyscf_basis.__name__)
+    return getattr(mod, symbol)
+
+
+def _has_ecp(kind, target, symbol) -> bool:
+    from pyscf.gto.basis import _BASIS_DIR, parse_nwchem_ecp
+
+    if kind == "gth":
+        return True  # GTH sets are valence-only, built for GTH pseudopotentials
+    files = target if isinstance(target, tuple) else (target,)
+    for f in files:
+        if "dat" not in f:
+            continue
+        try:
+            if parse_nwchem_ecp.load(os.path.join(_BASIS_DIR, f), symbol):
+                return True
+        except Exception:  # noqa: BLE001 - a file without an ECP section
+            pass
+    return False
+
+
+def _element_records(kind, target) -> dict:
+    from pyscf.data.elements import ELEMENTS
+
+    records = {}
+    for symbol in ELEMENTS[1:]:
+        try:
+            shells = _load_shells(kind, target, symbol)
+        except Exception:  # noqa: BLE001 - element absent from this set
+            continue
+        record = element_record(shells, _has_ecp(kind, target, symbol))
+        if record is not None:
+            records[symbol] = record
+    return records
+
+
+# ------------------------------------------------- names: family and zeta
+
+_AUX_MARKERS = ("jkfit", "jfit", "cfit", "xfit", "mp2fit", "optri", "fit", "ri")
+
+
+def is_auxiliary(name: str) -> bool:
+    """Density-fitting / resolution-of-identity sets, not orbital bases."""
+    n = normalize(name)
+    if n in ("weigend", "weigend+etb", "demon", "ahlrichs"):
+        return True
+    return any(n.endswith(m) for m in _AUX_MARKERS)
+
+
+def family_of(name: str) -> str:
+    """Family label from the name (the family is a naming fact)."""
+    n = name.lower()
+    if is_auxiliary(n):
+        return "auxiliary"
+    prefixes = (
+        ("ccecp", "ccecp"),
+        ("crystal-", "crystal"),
+        ("heavy-aug-cc", "aug-cc"),
+        ("aug-cc-", "aug-cc"),
+        ("cc-", "cc"),
+        ("ma-def2", "ma-def2"),
+        ("def2", "def2"),
+        ("aug-pcseg", "aug-pcseg"),
+        ("pcseg", "pcseg"),
+        ("aug-pc-", "aug-pc"),
+        ("pc-", "pc"),
+        ("sto-", "sto"),
+        ("gth", "gth"),
+        ("dyall", "dyall"),
+        ("ano", "ano"),
+        ("roos", "ano"),
+        ("bfd", "bfd"),
+        ("lanl", "lanl"),
+        ("stuttgart", "stuttgart"),
+        ("crenb", "crenb"),
+        ("sbkjc", "sbkjc"),
+        ("ecpds", "ecp-only"),
+        ("pob-", "pob"),
+        ("sap", "sap"),
+        ("sarc", "sarc"),
+        ("dzvp", "dgauss"),
+        ("iglo", "iglo"),
+        ("faegre", "faegre"),
+        ("minao", "minao"),
+    )
+    for prefix, fam in prefixes:
+        if n.startswith(prefix):
+            return fam
+    if n[:1].isdigit():
+        return "pople"
+    if "vszp" in n:
+        return "vszp"
+    if n in ("tzv",):
+        return "ahlrichs"
+    if n in ("dz", "dzp", "tzp", "qzp", "adzp", "atzp", "aqzp", "dzp_dunning") or n.endswith(
+        "-dkh"
+    ):
+        return "xzp"
+    return "other"
+
+
+def core_valence_of(name: str) -> bool:
+    """cc-pCVXZ and cc-pwCVXZ (and their aug- forms) correlate the core."""
+    n = normalize(name)
+    return "ccpcv" in n or "ccpwcv" in n
+
+
+_ZETA_WORDS = {1: "minimal", 2: "double", 3: "triple", 4: "quadruple", 5: "quintuple"}
+_LETTER_ZETA = {"d": 2, "t": 3, "q": 4, "5": 5, "6": 5}
+
+
+def zeta_from_name(name: str) -> str:
+    """Zeta level read from naming conventions; used only as a cross-check."""
+    import re
+
+    n = normalize(name)
+    if is_auxiliary(n):
+        return "unknown"
+    if n.startswith(("sto", "minao")) or n.endswith("szv") or "szvmolopt" in n:
+        return "minimal"
+    if n.startswith("6311"):
+        return "triple"
+    if re.match(r"^(321|431|631)", n):
+        return "double"
+    m = re.search(r"pc(?:seg)?(\d)$", n)
+    if m:
+        return _ZETA_WORDS[{0: 2, 1: 2, 2: 3, 3: 4, 4: 5}[int(m.group(1))]]
+    m = re.search(r"(?:pv|pcv|pwcv|bfdv|ccpv)([dtq56])z", n)
+    if m:
+        return _ZETA_WORDS[_LETTER_ZETA[m.group(1)]]
+    m = re.search(r"([234])z", n)
+    if m and n.startswith("dyall"):
+        return _ZETA_WORDS[int(m.group(1))]
+    if "svp" in n or "sv(p)" in n:
+        return "double"
+    for prefix, level in (("dz", 2), ("tz", 3), ("qz", 4)):
+        if re.search(prefix + r"v?\d?p?", n.replace("def2", "").replace("madef2", "")) and (
+            n.startswith(prefix) or prefix in n
+        ):
+            return _ZETA_WORDS[level]
+    return "unknown"
+
+
+def augmentation_layers_by_name(name: str) -> int:
+    """Diffuse layers a name declares on heavy atoms (aug- 1, d-aug 2, + 1, ...).
+
+    Only used to leave augmenting shells out of the zeta count: a diffuse
+    shell cannot be told from a valence shell by its exponent alone, since
+    the outer valence exponents of large sets (pc-4: O p 0.066) fall where
+    the diffuse ones of small sets lie (aug-cc-pVDZ: O p 0.069).
+    """
+    n = normalize(name)
+    if "taug" in n:
+        return 3
+    if "daug" in n:
+        return 2
+    if "aug" in n or n.startswith(("madef2", "adzp", "atzp", "aqzp", "dyallav", "dyallacv", "dyallaae")):
+        return 1
+    if n[:1].isdigit() and "+" in n:
+        return 1
+    if n.startswith("def2") and n.endswith("d"):
+        return 1
+    return 0
+
+
+def zeta_from_data(shells_o, name: str, core_valence: bool) -> str:
+    """Zeta level from the valence p shells of the reference atom (oxygen).
+
+    Oxygen's p shells are all valence shells, so their count is the number
+    of functions per valence p orbital: 1 minimal, 2 double, 3 triple, ...
+    (5 stands for quintuple or larger).  Augmenting diffuse layers (as the
+    name declares them) are not counted.  Core-valence sets (cc-pCVXZ,
+    cc-pwCVXZ) add X-1 tight p shells to the X valence ones (Woon and
+    Dunning, J. Chem. Phys. 103, 4572 (1995)), so there the valence count is
+    (n + 1) / 2.  Returns 'unknown' when the set has no oxygen or lists only
+    uncontracted primitives (then the count says nothing about zeta).
+    """
+    if not shells_o:
+        return "unknown"
+    p_shells = [_shell_primitives(s) for s in shells_o if s[0] == 1]
+    if not p_shells:
+        return "unknown"
+    if all(len(exps) == 1 for _, exps, _n in p_shells) and len(p_shells) > 5:
+        return "unknown"  # a primitive (uncontracted) set
+    n_p = sum(n for _, _e, n in p_shells)
+    valence = n_p - augmentation_layers_by_name(name)
+    if core_valence:
+        valence = (valence + 1) // 2
+    if valence < 1:
+        return "unknown"
+    return _ZETA_WORDS[min(valence, 5)]
+
+
+# ----------------------------------------------------------- the index
+
+
+def basis_entries(only: set[str] | None = None) -> tuple[dict, dict]:
+    """Headers and element records for every library basis (or only some).
+
+    ``only`` is a set of canonical names; the build of a sample is what the
+    test uses to check the stored index against the installed PySCF.
+    """
+    headers: dict = {}
+    records: dict = {}
+    with _pyscf_library_only():
+        for (kind, target), keys in _targets().items():
+            name = _canonical_name(kind, target, keys)
+            if only is not None and name not in only:
+                continue
+            recs = _element_records(kind, target)
+            try:
+                shells_o = _load_shells(kind, target, ZETA_REFERENCE_ATOM)
+            except Exception:  # noqa: BLE001 - no oxygen in this set
+                shells_o = None
+            if not recs:
+                continue
+            aux = is_auxiliary(name)
+            cv = core_valence_of(name)
+            by_name = zeta_from_name(name)
+            if aux:
+                zeta, zeta_source = "unknown", "auxiliary"
+            else:
+                zeta = zeta_from_data(shells_o, name, cv)
+                zeta_source = "data"
+                if zeta == "unknown":
+                    zeta, zeta_source = by_name, "name"
+            aliases = sorted(set(keys) | {name})
+            headers[name] = {
+                "aliases": aliases,
+                "family": family_of(name),
+                "zeta": zeta,
+                "zeta_source": zeta_source,
+                "zeta_by_name": by_name,
+                "core_valence": cv,
+                "auxiliary": aux,
+                "elements": sorted(recs, key=_z_of),
+            }
+            records[name] = recs
+    return headers, records
+
+
+def pople_polarization_entries() -> dict:
+    """Records of the polarisation files behind 6-31g(d,p)-style names."""
+    from pyscf.gto.basis import _BASIS_DIR, parse_nwchem
+    from pyscf.data.elements import ELEMENTS
+
+    out: dict = {}
+    pople_dir = os.path.join(_BASIS_DIR, "pople-basis")
+    for prefix in ("6-31G", "6-311G", "3-21G"):
+        for token in POPLE_POLARIZATION_TOKENS:
+            path = os.path.join(pople_dir, f"{prefix}-polarization-{token}.dat")
+            if not os.path.isfile(path):
+                continue
+            recs = {}
+            with _pyscf_library_only():
+                for symbol in ELEMENTS[1:]:
+                    try:
+                        shells = parse_nwchem.load(path, symbol)
+                    except Exception:  # noqa: BLE001 - element absent
+                        continue
+                    rec = element_record(shells, False)
+                    if rec is not None:
+                        recs[symbol] = rec
+            out.setdefault(prefix.lower(), {})[token] = recs
+    return out
+
+
+def _z_of(symbol: str) -> int:
+    from pyscf.data.elements import NUC
+
+    return NUC[symbol]
+
+
+def build_basis_index() -> dict:
+    """The whole index as stored (before gzip).
+
+    Per-basis element records are stored as JSON *strings* inside the outer
+    document, so that reading the index parses only the small headers; one
+    basis's records are parsed when first asked for.
+    """
+    import pyscf
+
+    headers, records = basis_entries()
+    words = {}
+    for name in sorted(headers):
+        for alias in headers[name]["aliases"]:
+            words.setdefault(normalize(alias), name)
+    pol = pople_polarization_entries()
+    return {
+        "format": FORMAT_VERSION,
+        "source": "pyscf.gto.basis ALIAS and GTH_ALIAS tables and their data files "
+        "(basis_set_exchange fallback switched off)",
+        "pyscf_version": pyscf.__version__,
+        "normalisation": "lower case; remove '-', '_' and ' ' (as pyscf.gto.basis)",
+        "words": words,
+        "bases": headers,
+        "records": {name: _dump(records[name]) for name in sorted(records)},
+        "pople_polarization": {
+            prefix: {token: _dump(recs) for token, recs in sorted(tokens.items())}
+            for prefix, tokens in sorted(pol.items())
+        },
+    }
+
+
+def _dump(obj) -> str:
+    return json.dumps(obj, separators=(",", ":"), sort_keys=True)
+
+
+def _write_json_gz(path: Path, obj) -> None:
+    raw = json.dumps(obj, separators=(",", ":"), sort_keys=True).encode()
+    # mtime=0 keeps the file byte-identical between regenerations.
+    with open(path, "wb") as fh, gzip.GzipFile(fileobj=fh, mode="wb", mtime=0) as gz:
+        gz.write(raw)
+
+
+def _elements_text(data: dict) -> str:
+    return json.dumps(data, indent=1, sort_keys=True) + "\n"
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(
+        prog="python -m deckward.rules.build_data",
+        description="Regenerate deckward's element and basis-set data from PySCF.",
+    )
+    parser.add_argument(
+        "--check", action="store_true", help="only report whether the stored files are current"
+    )
+    args = parser.parse_args(argv)
+
+    elements_text = _elements_text(build_elements())
+    index = build_basis_index()
+    if args.check:
+        stale = []
+        if not ELEMENTS_FILE.exists() or ELEMENTS_FILE.read_text() != elements_text:
+            stale.append(str(ELEMENTS_FILE))
+        stored = None
+        if BASIS_INDEX_FILE.exists():
+            with gzip.open(BASIS_INDEX_FILE, "rt") as fh:
+                stored = json.load(fh)
+        if stored != json.loads(_dump(index)):
+            stale.append(str(BASIS_INDEX_FILE))
+        for path in stale:
+            print(f"stale: {path}")
+        return 1 if stale else 0
+
+    ELEMENTS_FILE.write_text(elements_text)
+    _write_json_gz(BASIS_INDEX_FILE, index)
+    mismatched = [
+        (n, h["zeta"], h["zeta_by_name"])
+        for n, h in index["bases"].items()
+        if h["zeta_source"] == "data"
+        and h["zeta_by_name"] != "unknown"
+        and h["zeta"] != h["zeta_by_name"]
+    ]
+    print(
+        f"wrote {ELEMENTS_FILE} and {BASIS_INDEX_FILE} "
+        f"({len(index['bases'])} basis sets, {len(index['words'])} words, "
+        f"{BASIS_INDEX_FILE.stat().st_size} bytes)"
+    )
+    for name, by_data, by_name in mismatched:
+        print(f"zeta cross-check: {name}: data says {by_data}, name says {by_name}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

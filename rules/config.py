@@ -1,0 +1,167 @@
+"""Project configuration: ``deckward.yaml``.
+
+Found in the checked folder or any folder above it (``--config`` overrides).
+Read with ``yaml.safe_load`` semantics, but through the node composer so that
+every problem (an unknown key, a bad severity) is reported at its line.
+"""
+from __future__ import annotations
+
+import fnmatch
+import os
+from dataclasses import dataclass, field
+from typing import Optional
+
+import yaml
+
+from deckward.grammar.build import did_you_mean
+from deckward.grammar.findings import Finding, RuleInfo, Severity
+from deckward.grammar.text_index import LineIndex
+
+CONFIG_NAME = "deckward.yaml"
+SEVERITY_WORDS = ("error", "warning", "info", "off")
+TOP_KEYS = ("rules", "exclude", "probe", "run")
+PROBE_KEYS = ("time_limit_s", "max_basis_functions", "threshold_ev")
+RUN_KEYS = ("max_memory_mb", "threads", "jobs", "time_limit_s")
+
+CONFIG_RULE = RuleInfo(
+    id="invalid-config",
+    severity=Severity.ERROR,
+    title="deckward.yaml has a mistake",
+    why="A misspelt rule id or severity in the configuration would silently leave a rule at its "
+    "default; every key and value is checked and reported at its line.",
+    references=("docs/configuration.md",),
+    bad_example="rules:\n  koopmans-ea: eror\n",
+    good_example="rules:\n  koopmans-ip: error\n",
+    category="hygiene",
+)
+
+
+@dataclass
+class Config:
+    path: Optional[str] = None
+    root: Optional[str] = None  # the folder holding the file: the workspace root
+    severities: dict[str, Optional[Severity]] = field(default_factory=dict)  # None: off
+    exclude: list[str] = field(default_factory=list)
+    probe: dict = field(default_factory=dict)
+    run: dict = field(default_factory=dict)
+    findings: list[Finding] = field(default_factory=list)
+
+    def severity_for(self, rule_id: str, default: Severity) -> Optional[Severity]:
+        """The configured severity (None when the rule is off)."""
+        if rule_id in self.severities:
+            return self.severities[rule_id]
+        return default
+
+    def is_excluded(self, path: str) -> bool:
+        if not self.exclude:
+            return False
+        base = self.root or os.getcwd()
+        rel = os.path.relpath(os.path.abspath(path), base).replace(os.sep, "/")
+        for pattern in self.exclude:
+            if fnmatch.fnmatch(rel, pattern) or (pattern.endswith("/**") and rel.startswith(pattern[:-2])):
+                return True
+        return False
+
+
+def find_config(start: str) -> Optional[str]:
+    """deckward.yaml in ``start`` (a folder or a file's folder) or above."""
+    folder = os.path.abspath(start)
+    if not os.path.isdir(folder):
+        folder = os.path.dirname(folder)
+    while True:
+        candidate = os.path.join(folder, CONFIG_NAME)
+        if os.path.isfile(candidate):
+            return candidate
+        parent = os.path.dirname(folder)
+        if parent == folder:
+            return None
+        folder = parent
+
+
+def load_config(path: Optional[str], known_rules: set[str]) -> Config:
+    """Read and validate a configuration file (``None``: defaults)."""
+    if path is None:
+        return Config()
+    cfg = Config(path=path, root=os.path.dirname(os.path.abspath(path)))
+    try:
+        with open(path, "rb") as f:
+            data = f.read()
+        text = data.decode("utf-8")
+    except (OSError, UnicodeDecodeError) as e:
+        cfg.findings.append(Finding("invalid-config", Severity.ERROR, f"cannot read the configuration: {e}",
+                                    LineIndex("", path).span(0, 0)))
+        return cfg
+    index = LineIndex(text, path)
+
+    def report(node, message: str) -> None:
+        if node is None:
+            span = index.span(0, 0)
+        else:
+            span = index.span(node.start_mark.index, node.end_mark.index)
+        cfg.findings.append(Finding("invalid-config", Severity.ERROR, message, span))
+
+    try:
+        root = yaml.compose(text, Loader=yaml.SafeLoader)
+    except yaml.YAMLError as e:
+        mark = getattr(e, "problem_mark", None)
+        offset = mark.index if mark is not None else 0
+        cfg.findings.append(Finding("invalid-config", Severity.ERROR,
+                                    f"not valid YAML: {getattr(e, 'problem', None) or e}",
+                                    index.span(offset, offset + 1)))
+        return cfg
+    if root is None:
+        return cfg
+    if not isinstance(root, yaml.MappingNode):
+        report(root, "the configuration must be a mapping of keys (rules, exclude, probe, run)")
+        return cfg
+    for key_node, value in root.value:
+        key = key_node.value
+        if key not in TOP_KEYS:
+            report(key_node, f"unknown key `{key}` (keys: {', '.join(TOP_KEYS)})" + did_you_mean(str(key), TOP_KEYS))
+        elif key == "rules":
+            _rules(value, cfg, known_rules, report)
+        elif key == "exclude":
+            if not isinstance(value, yaml.SequenceNode) or not all(isinstance(v, yaml.ScalarNode) for v in value.value):
+                report(value, "`exclude` must be a list of glob patterns")
+            else:
+                cfg.exclude = [str(v.value) for v in value.value]
+        else:
+            allowed = PROBE_KEYS if key == "probe" else RUN_KEYS
+            target = cfg.probe if key == "probe" else cfg.run
+            if not isinstance(value, yaml.MappingNode):
+                report(value, f"`{key}` must be a mapping (keys: {', '.join(allowed)})")
+                continue
+            for k, v in value.value:
+                if k.value not in allowed:
+                    report(k, f"unknown key `{k.value}` in `{key}` (keys: {', '.join(allowed)})"
+                           + did_you_mean(str(k.value), allowed))
+                    continue
+                try:
+                    number = float(v.value)
+                except (TypeError, ValueError):
+                    report(v, f"`{key}.{k.value}` must be a positive number")
+                    continue
+                if not number > 0:
+                    report(v, f"`{key}.{k.value}` must be a positive number")
+                    continue
+                target[k.value] = number
+    return cfg
+
+
+def _rules(node, cfg: Config, known: set[str], report) -> None:
+    if not isinstance(node, yaml.MappingNode):
+        report(node, "`rules` must map rule ids to error | warning | info | off")
+        return
+    for k, v in node.value:
+        rid = str(k.value)
+        if rid not in known:
+            report(k, f"unknown rule `{rid}`" + did_you_mean(rid, sorted(known)))
+            continue
+        word = str(v.value).lower() if isinstance(v, yaml.ScalarNode) else ""
+        if isinstance(v, yaml.ScalarNode) and v.tag == "tag:yaml.org,2002:bool" and word in ("false", "off", "no"):
+            word = "off"
+        if word not in SEVERITY_WORDS:
+            report(v, f"`{v.value if isinstance(v, yaml.ScalarNode) else '...'}` is not a severity "
+                      f"(error | warning | info | off)" + did_you_mean(word, SEVERITY_WORDS))
+            continue
+        cfg.severities[rid] = None if word == "off" else Severity(word)

@@ -1,0 +1,35 @@
+"""What a rule sees: the resolved workspace, and helpers to report findings."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Iterable, Optional
+
+from deckward.grammar.findings import Finding, Fix, Related, RuleInfo, Severity, Span
+from deckward.grammar.resolve import Workspace
+
+
+@dataclass
+class Context:
+    workspace: Workspace
+    info: RuleInfo
+
+    def finding(
+        self,
+        span: Span,
+        message: str,
+        *,
+        severity: Optional[Severity] = None,
+        related: Iterable[Related] = (),
+        fixes: Iterable[Fix] = (),
+        evidence: Iterable[tuple] = (),
+    ) -> Finding:
+        """A finding of this rule at ``span`` (default severity unless given)."""
+        return Finding(
+            self.info.id,
+            severity or self.info.severity,
+            message,
+            span,
+            tuple(related),
+            tuple(fixes),
+            tuple(evidence),
+        )

@@ -1,0 +1,2 @@
+def threshold(symbol):
+    return 0.1

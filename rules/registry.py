@@ -1,0 +1,69 @@
+"""The rule registry: every rule module in ``deckward.rules.catalogue``.
+
+A rule module defines ``INFO`` (a ``RuleInfo``: id, severity, title, why,
+references, examples, fix) and ``check(ctx)`` yielding findings.  Modules are
+discovered, so adding a rule is adding a file (see DEVELOPERS.md).  Findings
+produced by the grammar (syntax errors, names) are listed here too, so users
+see one catalogue.
+"""
+from __future__ import annotations
+
+import importlib
+import pkgutil
+from dataclasses import dataclass
+from typing import Callable, Iterable, Optional
+
+from deckward.grammar.findings import Finding, RuleInfo, Severity
+from deckward.grammar.language_rules import LANGUAGE_RULES
+
+from . import catalogue
+
+
+@dataclass(frozen=True)
+class Rule:
+    info: RuleInfo
+    check: Optional[Callable[..., Iterable[Finding]]]  # None: reported by the grammar or a probe
+    module: str = ""
+
+    @property
+    def id(self) -> str:
+        return self.info.id
+
+
+_RULES: Optional[dict[str, Rule]] = None
+
+# Findings that are not rules of the catalogue but can appear in output.
+INTERNAL_RULES = (
+    RuleInfo(
+        id="internal-error",
+        severity=Severity.ERROR,
+        title="A rule failed while checking this deck",
+        why="deckward itself hit a defect while running one rule; the other rules' findings are still "
+        "reported. Please report it with the deck that caused it.",
+        category="hygiene",
+    ),
+)
+
+
+def all_rules() -> dict[str, Rule]:
+    """Every rule by id, in catalogue order (language rules first)."""
+    global _RULES
+    if _RULES is None:
+        rules: dict[str, Rule] = {}
+        for info in LANGUAGE_RULES:
+            rules[info.id] = Rule(info, None, "deckward.grammar")
+        modules = sorted(m.name for m in pkgutil.iter_modules(catalogue.__path__) if not m.name.startswith("_"))
+        for name in modules:
+            mod = importlib.import_module(f"{catalogue.__name__}.{name}")
+            info = getattr(mod, "INFO", None)
+            if info is None:
+                continue
+            rules[info.id] = Rule(info, getattr(mod, "check", None), mod.__name__)
+        for info in INTERNAL_RULES:
+            rules.setdefault(info.id, Rule(info, None, "deckward.rules.engine"))
+        _RULES = rules
+    return _RULES
+
+
+def get(rule_id: str) -> Optional[Rule]:
+    return all_rules().get(rule_id)

@@ -1,0 +1,110 @@
+"""Checking files: find the decks, resolve each once, run the rules.
+
+Shared by ``deckward check``, ``deckward review`` and the benchmarks; the
+language server calls the same engine on its open documents.
+"""
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from typing import Iterable, Optional
+
+from deckward.grammar.findings import Finding, Severity
+from deckward.grammar.resolve import Loader, resolve
+from deckward.rules.config import Config, find_config, load_config
+from deckward.rules.engine import check_workspace, dedupe, known_rule_ids
+
+
+class UsageError(Exception):
+    """A problem with the command line itself (exit status 2)."""
+
+
+@dataclass
+class CheckResult:
+    files: list[str]
+    findings: list[Finding]  # sorted; suppressed ones included (``suppressed`` set)
+    config: Config
+    fixes_applied: int = 0
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def active(self) -> list[Finding]:
+        return [f for f in self.findings if f.suppressed is None]
+
+    @property
+    def suppressed(self) -> list[Finding]:
+        return [f for f in self.findings if f.suppressed is not None]
+
+    def counts(self) -> dict[str, int]:
+        c = {"error": 0, "warning": 0, "info": 0}
+        for f in self.active:
+            c[f.severity.value] += 1
+        return c
+
+
+def discover(paths: Iterable[str], config: Config) -> list[str]:
+    """Deck files named or found below the given paths, in a stable order.
+    Raises UsageError for a path that does not exist."""
+    out: list[str] = []
+    seen: set[str] = set()
+    for p in paths:
+        if os.path.isfile(p):
+            candidates = [p]
+        elif os.path.isdir(p):
+            candidates = []
+            for folder, dirs, files in os.walk(p):
+                dirs[:] = sorted(d for d in dirs if not d.startswith("."))
+                candidates.extend(os.path.join(folder, f) for f in sorted(files) if f.endswith(".deck"))
+            candidates = [c for c in candidates if not config.is_excluded(c)]
+        elif os.path.exists(p):
+            raise UsageError(f"{p}: not a file or folder")
+        else:
+            raise UsageError(f"{p}: no such file or folder")
+        for c in candidates:
+            key = os.path.abspath(c)
+            if key not in seen:
+                seen.add(key)
+                out.append(os.path.normpath(c))
+    return out
+
+
+def config_for(paths: list[str], explicit: Optional[str]) -> Config:
+    known = known_rule_ids()
+    if explicit is not None:
+        if not os.path.isfile(explicit):
+            raise UsageError(f"{explicit}: no such configuration file")
+        return load_config(explicit, known)
+    first = paths[0] if paths else "."
+    return load_config(find_config(first) if os.path.exists(first) else None, known)
+
+
+def root_for(path: str, config: Config, given: str) -> str:
+    """The workspace root: the configuration's folder, else the folder given
+    on the command line (or a given file's folder)."""
+    if config.root:
+        return config.root
+    return given if os.path.isdir(given) else os.path.dirname(os.path.abspath(given))
+
+
+def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
+                loader: Optional[Loader] = None) -> CheckResult:
+    config = config or config_for(paths, config_path)
+    loader = loader or Loader()
+    findings: list[Finding] = list(config.findings)
+    files: list[str] = []
+    for given in paths:
+        for path in discover([given], config):
+            files.append(path)
+            try:
+                ws = resolve(path, loader, root_for(path, config, given))
+            except OSError as e:
+                raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
+            findings.extend(check_workspace(ws, config))
+    return CheckResult(files, dedupe(findings), config)
+
+
+def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:
+    if fail_on == "never":
+        return False
+    threshold = Severity(fail_on).rank
+    return any(f.severity.rank >= threshold for f in findings if f.suppressed is None)
