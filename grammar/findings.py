@@ -173,3 +173,7 @@ class RuleInfo:
     fix_note: str = ""
     category: str = "language"
     threshold_note: str = ""  # where a threshold comes from (source or "common practice")
+    # The exact text the finding covers in ``bad_example`` (tests check it).
+    fires_at: str = ""
+    # The bad example after applying the rule's fix (tests check it).
+    fixed_example: str = ""

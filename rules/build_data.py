@@ -343,8 +343,10 @@ def augmentation_layers_by_name(name: str) -> int:
         return 3
     if "daug" in n:
         return 2
-    if "aug" in n or n.startswith(("madef2", "adzp", "atzp", "aqzp", "dyallav", "dyallacv", "dyallaae")):
-        return 1
+    if "aug" in n or n.startswith(
+        ("madef2", "adzp", "atzp", "aqzp", "dyallav", "dyallacv", "dyallaae", "roos")
+    ):
+        return 1  # roos-dz/tz are the "Roos augmented" ANO sets (file header)
     if n[:1].isdigit() and "+" in n:
         return 1
     if n.startswith("def2") and n.endswith("d"):
@@ -380,6 +382,27 @@ def zeta_from_data(shells_o, name: str, core_valence: bool) -> str:
     return _ZETA_WORDS[min(valence, 5)]
 
 
+def choose_zeta(by_data: str, by_name: str, auxiliary: bool) -> tuple[str, str]:
+    """Pick the zeta level and say where it came from.
+
+    The count from the data decides whenever the name carries no level (ano,
+    iglo3, tzv, ...) or agrees with it.  Where a family's published name
+    states a level and the count disagrees, the name wins: the disagreements
+    in PySCF's library are sets whose p count is inflated by functions the
+    name does not declare (a diffuse p in Stuttgart RLC oxygen, general
+    contractions in pc-3, the larger-than-named cc-pVXZ-F12-nZ sets), so the
+    count would mislead there.  ``python -m deckward.rules.build_data``
+    lists every such disagreement.
+    """
+    if auxiliary:
+        return "unknown", "auxiliary"
+    if by_data == "unknown":
+        return by_name, "name"
+    if by_name in ("unknown", by_data):
+        return by_data, "data"
+    return by_name, "name (data disagrees)"
+
+
 # ----------------------------------------------------------- the index
 
 
@@ -406,13 +429,8 @@ def basis_entries(only: set[str] | None = None) -> tuple[dict, dict]:
             aux = is_auxiliary(name)
             cv = core_valence_of(name)
             by_name = zeta_from_name(name)
-            if aux:
-                zeta, zeta_source = "unknown", "auxiliary"
-            else:
-                zeta = zeta_from_data(shells_o, name, cv)
-                zeta_source = "data"
-                if zeta == "unknown":
-                    zeta, zeta_source = by_name, "name"
+            by_data = "unknown" if aux else zeta_from_data(shells_o, name, cv)
+            zeta, zeta_source = choose_zeta(by_data, by_name, aux)
             aliases = sorted(set(keys) | {name})
             headers[name] = {
                 "aliases": aliases,
@@ -420,6 +438,7 @@ def basis_entries(only: set[str] | None = None) -> tuple[dict, dict]:
                 "zeta": zeta,
                 "zeta_source": zeta_source,
                 "zeta_by_name": by_name,
+                "zeta_by_data": by_data,
                 "core_valence": cv,
                 "auxiliary": aux,
                 "elements": sorted(recs, key=_z_of),
@@ -535,11 +554,9 @@ def main(argv: list[str] | None = None) -> int:
     ELEMENTS_FILE.write_text(elements_text)
     _write_json_gz(BASIS_INDEX_FILE, index)
     mismatched = [
-        (n, h["zeta"], h["zeta_by_name"])
+        (n, h["zeta_by_data"], h["zeta_by_name"])
         for n, h in index["bases"].items()
-        if h["zeta_source"] == "data"
-        and h["zeta_by_name"] != "unknown"
-        and h["zeta"] != h["zeta_by_name"]
+        if h["zeta_source"] == "name (data disagrees)"
     ]
     print(
         f"wrote {ELEMENTS_FILE} and {BASIS_INDEX_FILE} "
@@ -547,7 +564,7 @@ def main(argv: list[str] | None = None) -> int:
         f"{BASIS_INDEX_FILE.stat().st_size} bytes)"
     )
     for name, by_data, by_name in mismatched:
-        print(f"zeta cross-check: {name}: data says {by_data}, name says {by_name}")
+        print(f"zeta cross-check: {name}: data says {by_data}, name says {by_name} (name kept)")
     return 0
 
 

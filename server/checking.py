@@ -87,7 +87,10 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
-                loader: Optional[Loader] = None) -> CheckResult:
+                loader: Optional[Loader] = None, probe: bool = False) -> CheckResult:
+    """Check every deck below ``paths``.  With ``probe``, the PySCF probes
+    run too (``deckward.rules.probes``) and their findings go through the
+    same severity and suppression handling."""
     config = config or config_for(paths, config_path)
     loader = loader or Loader()
     findings: list[Finding] = list(config.findings)
@@ -99,7 +102,12 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
                 ws = resolve(path, loader, root_for(path, config, given))
             except OSError as e:
                 raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
-            findings.extend(check_workspace(ws, config))
+            extra = []
+            if probe:
+                from deckward.rules.probes import run_probes
+
+                extra = run_probes(ws, config)
+            findings.extend(check_workspace(ws, config, extra=extra))
     return CheckResult(files, dedupe(findings), config)
 
 

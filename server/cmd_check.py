@@ -16,12 +16,24 @@ def add_arguments(p) -> None:
                    help="exit 1 when a finding is at or above this severity (default: warning)")
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the path)")
     p.add_argument("--output", "-o", metavar="FILE", help="write the report to FILE instead of standard output")
+    fixing = p.add_argument_group("fixes")
+    fixing.add_argument("--fix", action="store_true", help="apply safe fixes to the files")
+    fixing.add_argument("--fix-risky", action="store_true", help="apply risky fixes too (implies --fix)")
+    fixing.add_argument("--diff", action="store_true", help="print a unified diff of the fixes; write nothing")
+    p.add_argument("--probe", action="store_true",
+                   help="also run the PySCF probes (slow: minutes, not milliseconds)")
 
 
 def run(args) -> int:
     if args.format not in available():
         raise UsageError(f"the {args.format} format is not available in this build")
-    result = check_paths(args.paths, config_path=args.config)
+    extra_output = ""
+    if args.fix or args.fix_risky or args.diff:
+        from .fixing import run_fixes  # the fix machinery (see docs/architecture.md)
+
+        result, extra_output = run_fixes(args)
+    else:
+        result = check_paths(args.paths, config_path=args.config, probe=args.probe)
     text = renderer(args.format)(result)
     if args.output:
         try:
@@ -30,5 +42,7 @@ def run(args) -> int:
         except OSError as e:
             raise UsageError(f"{args.output}: cannot be written ({e.strerror or e})")
     else:
+        if extra_output:
+            sys.stdout.write(extra_output)
         sys.stdout.write(text)
     return 1 if exceeds(result.findings, args.fail_on) else 0

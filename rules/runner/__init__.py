@@ -1,0 +1,3 @@
+"""The runner: computes decks with PySCF.
+
+Imported only by `deckward run` (never on the typing path)."""

@@ -1,0 +1,1 @@
+"""The language server (pygls 2)."""
