@@ -30,10 +30,44 @@ KEYS = {
 }
 
 
+def edit_distance(a: str, b: str) -> int:
+    """Levenshtein distance with transpositions (optimal string alignment)."""
+    if a == b:
+        return 0
+    prev2: list[int] = []
+    prev = list(range(len(b) + 1))
+    for i, ca in enumerate(a, 1):
+        cur = [i] + [0] * len(b)
+        for j, cb in enumerate(b, 1):
+            cur[j] = min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (ca != cb))
+            if i > 1 and j > 1 and ca == b[j - 2] and a[i - 2] == cb:
+                cur[j] = min(cur[j], prev2[j - 2] + 1)
+        prev2, prev = prev, cur
+    return prev[-1]
+
+
+def closest_names(word: str, candidates, n: int = 1) -> list[str]:
+    """The candidates nearest to ``word``: small edit distance first (so short
+    names like `cm` -> `cn` are found), then difflib's similarity."""
+    cands = list(dict.fromkeys(candidates))
+    low = word.lower()
+    scored = []
+    for c in cands:
+        d = edit_distance(low, c.lower())
+        if d <= max(1, len(word) // 3):
+            scored.append((d, c))
+    scored.sort(key=lambda t: t[0])
+    out = [c for _, c in scored]
+    if len(out) < n:
+        lowered = {c.lower(): c for c in cands}
+        for m in difflib.get_close_matches(low, list(lowered), n=n, cutoff=0.6):
+            if lowered[m] not in out:
+                out.append(lowered[m])
+    return out[:n]
+
+
 def did_you_mean(word: str, candidates, n: int = 1) -> str:
-    close = difflib.get_close_matches(word, list(candidates), n=n, cutoff=0.6)
-    if not close:
-        close = difflib.get_close_matches(word.lower(), [c.lower() for c in candidates], n=n, cutoff=0.6)
+    close = closest_names(word, candidates, n)
     return f"; did you mean `{close[0]}`?" if close else ""
 
 

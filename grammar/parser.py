@@ -146,6 +146,10 @@ def parse_text(text: str, index: LineIndex) -> ParseOutput:
     def report(start: int, end: int, message: str) -> None:
         if len(findings) < MAX_SYNTAX_FINDINGS:
             findings.append(Finding("syntax-error", Severity.ERROR, message, index.span(start, end)))
+        elif len(findings) == MAX_SYNTAX_FINDINGS:
+            findings.append(Finding("syntax-error", Severity.ERROR,
+                                    f"more than {MAX_SYNTAX_FINDINGS} syntax errors: the rest of the file is not "
+                                    "reported", index.span(start, end)))
 
     for block, where, next_keyword in scanned.unclosed:
         line, _ = index.position(block.brace_start)
@@ -160,7 +164,7 @@ def parse_text(text: str, index: LineIndex) -> ParseOutput:
         report(offset, offset + 1, "unexpected `}`: no block is open here")
 
     for chunk in scanned.chunks:
-        if len(findings) >= MAX_SYNTAX_FINDINGS:
+        if len(findings) > MAX_SYNTAX_FINDINGS:
             break
         body = text[chunk.start : chunk.end]
         if not body.strip():

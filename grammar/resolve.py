@@ -15,8 +15,8 @@ from dataclasses import dataclass, field
 from typing import Callable, Optional
 
 from . import model as m
-from .build import build_deck, did_you_mean
-from .findings import Finding, Related, Severity, Span
+from .build import build_deck, closest_names, did_you_mean
+from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 from .text_index import LineIndex
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
@@ -309,13 +309,17 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
         if name.value in broken:
             return None
         same_kind = [n for n, dd in definitions.items() if dd.kind == kind]
+        fixes = ()
         if d is not None:
             msg = f"`{name.value}` is a {d.kind}, not a {kind}"
             related = (Related(d.name.span, f"`{name.value}` is defined here"),)
         else:
             msg = f"no {kind} is named `{name.value}`" + did_you_mean(name.value, same_kind)
             related = ()
-        findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related))
+            close = closest_names(name.value, same_kind)
+            if close:
+                fixes = (Fix(f"Use the {kind} `{close[0]}`", (TextEdit(name.span, close[0]),), Applicability.RISKY),)
+        findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related, fixes=fixes))
         return None
 
     states: dict[str, ResolvedState] = {}

@@ -20,12 +20,13 @@ first time they are asked for.
 
 from __future__ import annotations
 
-import difflib
-import gzip
 import json
+import zlib
 from dataclasses import dataclass
 from functools import lru_cache
-from importlib import resources
+from pathlib import Path
+
+_INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index.json.gz"
 
 ZETA_LEVELS = ("minimal", "double", "triple", "quadruple", "quintuple", "unknown")
 
@@ -79,8 +80,8 @@ def normalize(word: str) -> str:
 
 @lru_cache(maxsize=1)
 def _index() -> dict:
-    data = resources.files("deckward.rules.data").joinpath("basis_index.json.gz").read_bytes()
-    return json.loads(gzip.decompress(data))
+    # zlib with wbits=31 reads the gzip container without importing gzip.
+    return json.loads(zlib.decompress(_INDEX_FILE.read_bytes(), 31))
 
 
 def index_metadata() -> dict:
@@ -277,6 +278,8 @@ def all_names() -> list[str]:
 
 def closest(word: str, n: int = 3) -> list[str]:
     """Canonical names of the library bases most like ``word`` (did-you-mean)."""
+    import difflib  # only a did-you-mean pays for it
+
     norm = normalize(word.strip())
     if not norm or n <= 0:
         return []

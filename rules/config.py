@@ -71,11 +71,17 @@ def find_config(start: str) -> Optional[str]:
     while True:
         candidate = os.path.join(folder, CONFIG_NAME)
         if os.path.isfile(candidate):
-            return candidate
+            return _display_path(candidate)
         parent = os.path.dirname(folder)
         if parent == folder:
             return None
         folder = parent
+
+
+def _display_path(path: str) -> str:
+    """``path`` relative to the working folder when it lies below it."""
+    rel = os.path.relpath(path)
+    return path if rel.startswith("..") else rel
 
 
 def load_config(path: Optional[str], known_rules: set[str]) -> Config:

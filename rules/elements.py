@@ -13,12 +13,13 @@ marks them with the ``ghost`` flag, so ``lookup`` knows only real elements.
 
 from __future__ import annotations
 
-import difflib
 import json
 from dataclasses import dataclass
 from functools import lru_cache
-from importlib import resources
+from pathlib import Path
 from typing import Iterable
+
+_ELEMENTS_FILE = Path(__file__).resolve().parent / "data" / "elements.json"
 
 
 @dataclass(frozen=True)
@@ -38,8 +39,7 @@ class Element:
 
 @lru_cache(maxsize=1)
 def _table() -> dict[str, Element]:
-    text = resources.files("deckward.rules.data").joinpath("elements.json").read_text()
-    rows = json.loads(text)["elements"]
+    rows = json.loads(_ELEMENTS_FILE.read_text(encoding="utf-8"))["elements"]
     return {
         row["symbol"].lower(): Element(
             symbol=row["symbol"],
@@ -75,6 +75,8 @@ def closest_symbols(text: str, n: int = 3) -> list[str]:
     A symbol that matches ``text`` apart from letter case comes first; then
     symbols sharing its first letter, ranked by string similarity.
     """
+    import difflib  # only a did-you-mean pays for it
+
     word = text.strip()
     if not word or n <= 0:
         return []
@@ -82,17 +84,20 @@ def closest_symbols(text: str, n: int = 3) -> list[str]:
     exact = table.get(word.lower())
     if exact is not None:
         return [exact.symbol]
-    symbols = all_symbols()
-    lowered = {s.lower(): s for s in symbols}
-    ranked = difflib.get_close_matches(word.lower(), list(lowered), n=n, cutoff=0.5)
-    result = [lowered[r] for r in ranked]
-    if len(result) < n:
-        # A one-letter prefix is a strong hint ("Cx" -> C, Cl, Ca, ...).
-        for s in symbols:
-            if s not in result and s[0].lower() == word[0].lower():
-                result.append(s)
-            if len(result) >= n:
-                break
+    key = word.lower()
+
+    def rank(symbol: str) -> tuple[bool, float]:
+        ratio = difflib.SequenceMatcher(None, key, symbol.lower()).ratio()
+        return (symbol[0].lower() != key[0], -ratio)
+
+    # A shared first letter is the strongest hint ("Cx" -> C, Ca, Cd, ...).
+    candidates = [
+        s
+        for s in all_symbols()
+        if s[0].lower() == key[0]
+        or difflib.SequenceMatcher(None, key, s.lower()).ratio() >= 0.5
+    ]
+    result = sorted(candidates, key=rank)
     return result[:n]
 
 
