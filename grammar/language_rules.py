@@ -51,6 +51,17 @@ LANGUAGE_RULES = (
         good_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n  reference = unrestricted\n}\n",
     ),
     RuleInfo(
+        id="missing-setting",
+        severity=_E,
+        title="A state that lacks what it needs to be computed",
+        why="A state needs a geometry, a method and a basis (directly or through its level); without "
+        "them nothing can be computed and the rules cannot check it.",
+        references=("The deck language, version 1 (docs/deck-language.md).",),
+        bad_example="geometry oh {\n  O 0 0 0\n  H 0 0 0.9697\n}\nstate radical { geometry = oh charge = 0 multiplicity = 2 }\n",
+        good_example="geometry oh {\n  O 0 0 0\n  H 0 0 0.9697\n}\n"
+        "state radical { geometry = oh method = hf basis = aug-cc-pvdz charge = 0 multiplicity = 2 }\n",
+    ),
+    RuleInfo(
         id="undefined-name",
         severity=_E,
         title="A reference that names nothing",

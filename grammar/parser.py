@@ -10,6 +10,7 @@ from __future__ import annotations
 import hashlib
 import os
 import tempfile
+from collections import OrderedDict
 from dataclasses import dataclass
 from importlib import resources
 from typing import Optional
@@ -135,8 +136,6 @@ class ParseOutput:
 
 def parse_text(text: str, index: LineIndex) -> ParseOutput:
     """Parse a whole deck; never raises."""
-    import lark
-
     parser = get_parser()
     scanned = scan(text)
     findings: list[Finding] = []
@@ -177,29 +176,15 @@ def parse_text(text: str, index: LineIndex) -> ParseOutput:
         if chunk.unclosed:
             body = body + "\n" + "}" * len(chunk.unclosed)
         chunk_len = chunk.end - chunk.start
-        errors: list = []
-
-        def on_error(e, _errors=errors):
-            _errors.append(e)
-            return len(_errors) <= MAX_SKIPS_PER_STATEMENT
-
-        try:
-            tree = parser.parse(body, on_error=on_error)
-        except lark.exceptions.UnexpectedInput as e:
-            if not errors or errors[-1] is not e:
-                errors.append(e)
-            tree = None
-        except Exception as e:  # a defect in the grammar machinery: still never a traceback
-            errors.append(e)
-            tree = None
+        tree, located = _parse_chunk(parser, body, chunk_len)
         seen_lines: set[int] = set()
-        for e in errors:
-            start, end, message = _error_location(e, body, chunk_len)
+        for start, end, message in located:
             line = index.position(chunk.start + start)[0]
             if line in seen_lines:
                 continue
             seen_lines.add(line)
             report(chunk.start + start, chunk.start + end, message)
+        errors = located
         if tree is None or (errors and not tree.children):
             broken.append(chunk)
             continue
@@ -208,6 +193,47 @@ def parse_text(text: str, index: LineIndex) -> ParseOutput:
         for child in tree.children:
             statements.append(ParsedStatement(child, chunk))
     return ParseOutput(statements, findings, scanned.comments, broken)
+
+
+_CHUNK_CACHE: "OrderedDict[tuple[str, int], tuple]" = OrderedDict()
+_CHUNK_CACHE_SIZE = 20000
+
+
+def _parse_chunk(parser, body: str, chunk_len: int):
+    """(tree or None, [(start, end, message)]) for one statement's text.
+
+    Remembered by text: in the editor, typing in one statement re-parses
+    that statement only (positions in the tree are relative to the chunk,
+    so a cached tree is valid wherever the statement moves)."""
+    import lark
+
+    key = (body, chunk_len)
+    hit = _CHUNK_CACHE.get(key)
+    if hit is not None:
+        _CHUNK_CACHE.move_to_end(key)
+        return hit
+    errors: list = []
+
+    def on_error(e):
+        errors.append(e)
+        return len(errors) <= MAX_SKIPS_PER_STATEMENT
+
+    try:
+        tree = parser.parse(body, on_error=on_error)
+    except lark.exceptions.UnexpectedInput as e:
+        if not errors or errors[-1] is not e:
+            errors.append(e)
+        tree = None
+    except Exception as e:  # a defect in the grammar machinery: still never a traceback
+        errors.append(e)
+        tree = None
+    result = (tree, [_error_location(e, body, chunk_len) for e in errors])
+    if len(body) > 100_000:  # not worth remembering
+        return result
+    _CHUNK_CACHE[key] = result
+    if len(_CHUNK_CACHE) > _CHUNK_CACHE_SIZE:
+        _CHUNK_CACHE.popitem(last=False)
+    return result
 
 
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:

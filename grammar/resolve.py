@@ -334,6 +334,18 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
                 ld = ref(st.level, "level")
                 level = ld.node if ld else None
             settings = st.overrides.merged_over(level.settings if level else m.LevelSettings())
+            missing = []
+            if st.geometry is None:
+                missing.append("`geometry`")
+            if st.level is None or level is not None:  # an undefined level is reported already
+                if settings.method is None:
+                    missing.append("`method`" if st.level is None else f"`method` (level `{level.name.value}` has none)")
+                if settings.basis is None:
+                    missing.append("`basis`" if st.level is None else f"`basis` (level `{level.name.value}` has none)")
+            if missing and st.name.value not in broken:
+                findings.append(Finding("missing-setting", Severity.ERROR,
+                                        f"state `{st.name.value}` has no " + " and no ".join(missing),
+                                        st.name.span))
             if definitions.get(st.name.value) is not None and definitions[st.name.value].node is st:
                 states[st.name.value] = ResolvedState(st, pf.path, geometry, bool(st.geometry and st.geometry.optimize),
                                                       level, settings)

@@ -59,8 +59,14 @@ def all_rules() -> dict[str, Rule]:
             if info is None:
                 continue
             rules[info.id] = Rule(info, getattr(mod, "check", None), mod.__name__)
-        for info in INTERNAL_RULES:
-            rules.setdefault(info.id, Rule(info, None, "deckward.rules.engine"))
+        from .config import CONFIG_RULE
+        from .probes import PROBE_RULES
+        from .suppressions import SUPPRESSION_RULES
+
+        for info in SUPPRESSION_RULES + (CONFIG_RULE,) + INTERNAL_RULES:
+            rules.setdefault(info.id, Rule(info, None, "deckward.rules"))
+        for info in PROBE_RULES:
+            rules.setdefault(info.id, Rule(info, None, "deckward.rules.probes"))
         _RULES = rules
     return _RULES
 

@@ -26,6 +26,7 @@ class CheckResult:
     config: Config
     fixes_applied: int = 0
     notes: list[str] = field(default_factory=list)
+    stats: Optional[object] = None  # parallel_check.CheckStats when run through it
 
     @property
     def active(self) -> list[Finding]:
@@ -87,19 +88,31 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
-                loader: Optional[Loader] = None, probe: bool = False) -> CheckResult:
+                loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
+                cache_dir: Optional[str] = None) -> CheckResult:
     """Check every deck below ``paths``.  With ``probe``, the PySCF probes
     run too (``deckward.rules.probes``) and their findings go through the
-    same severity and suppression handling."""
+    same severity and suppression handling.
+
+    ``jobs``: worker processes (0: one per core); ``cache_dir``: a findings
+    cache folder (None: no cache).  Both go through
+    ``deckward.server.parallel_check``; the findings are the same either
+    way.  A loader with unsaved editor text is never cached or shared."""
     config = config or config_for(paths, config_path)
-    loader = loader or Loader()
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
+    tasks = []
     for given in paths:
         for path in discover([given], config):
             files.append(path)
+            tasks.append((path, root_for(path, config, given)))
+    if loader is not None and loader.overlay:
+        jobs, cache_dir = 1, None
+    if jobs == 1 and cache_dir is None:
+        loader = loader or Loader()
+        for path, root in tasks:
             try:
-                ws = resolve(path, loader, root_for(path, config, given))
+                ws = resolve(path, loader, root)
             except OSError as e:
                 raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
             extra = []
@@ -108,7 +121,17 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
 
                 extra = run_probes(ws, config)
             findings.extend(check_workspace(ws, config, extra=extra))
-    return CheckResult(files, dedupe(findings), config)
+        return CheckResult(files, dedupe(findings), config)
+
+    from .parallel_check import DeckUnreadable, Task, check_tasks
+
+    try:
+        found, stats = check_tasks([Task(p, r) for p, r in tasks], config, probe=probe, jobs=jobs,
+                                   cache_dir=cache_dir, loader=loader)
+    except DeckUnreadable as e:
+        raise UsageError(str(e))
+    findings.extend(found)
+    return CheckResult(files, dedupe(findings), config, notes=list(stats.notes), stats=stats)
 
 
 def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:

@@ -5,6 +5,7 @@ import sys
 
 from .checking import UsageError, check_paths, exceeds
 from .formats import FORMATS, available, renderer
+from .parallel_check import add_scale_arguments, scale_options
 
 HELP = "check deck files or folders and report findings"
 
@@ -22,6 +23,7 @@ def add_arguments(p) -> None:
     fixing.add_argument("--diff", action="store_true", help="print a unified diff of the fixes; write nothing")
     p.add_argument("--probe", action="store_true",
                    help="also run the PySCF probes (slow: minutes, not milliseconds)")
+    add_scale_arguments(p)
 
 
 def run(args) -> int:
@@ -33,8 +35,10 @@ def run(args) -> int:
 
         result, extra_output = run_fixes(args)
     else:
-        result = check_paths(args.paths, config_path=args.config, probe=args.probe)
+        result = check_paths(args.paths, config_path=args.config, probe=args.probe, **scale_options(args))
     text = renderer(args.format)(result)
+    if extra_output:  # the diff goes to standard output even when the report goes to --output
+        sys.stdout.write(extra_output)
     if args.output:
         try:
             with open(args.output, "w", encoding="utf-8") as f:
@@ -42,7 +46,5 @@ def run(args) -> int:
         except OSError as e:
             raise UsageError(f"{args.output}: cannot be written ({e.strerror or e})")
     else:
-        if extra_output:
-            sys.stdout.write(extra_output)
         sys.stdout.write(text)
     return 1 if exceeds(result.findings, args.fail_on) else 0

@@ -91,3 +91,16 @@ def test_references_recorded_for_navigation():
     _, ws = check_text(text)
     assert [(r.kind, r.name.value, r.name.span.line, r.target.name.span.line) for r in ws.references] == [
         ("geometry", "cn", 6, 1), ("level", "hf_adz", 6, 5), ("state", "s", 7, 6)]
+
+
+def test_state_without_geometry_method_or_basis():
+    text = GEO + "level bare { reference = unrestricted }\n" + (
+        "state a { level = bare charge = 0 multiplicity = 2 }\n"      # line 6
+        "state b { geometry = cn method = hf charge = 0 multiplicity = 2 }\n"  # line 7
+        "state c { geometry = cn method = hf basis = sto-3g charge = 0 multiplicity = 2 }\n"
+    )
+    findings, _ = check_text(text)
+    assert [(f.span.line, f.span.column, f.message) for f in findings if f.rule == "missing-setting"] == [
+        (6, 7, "state `a` has no `geometry` and no `method` (level `bare` has none) and no `basis` (level `bare` has none)"),
+        (7, 7, "state `b` has no `basis`"),
+    ]

@@ -1,3 +1,41 @@
 """Probes: cheap PySCF calculations that back findings with numbers.
 
-Imported only on request (never on the typing path)."""
+Imported only on request (``deckward probe``, ``deckward check --probe``),
+never on the typing path; PySCF itself is imported only when a probe runs.
+One module per probe, each with ``INFO`` (a RuleInfo) and
+``probe(ctx) -> findings``.
+"""
+from __future__ import annotations
+
+from typing import Optional
+
+from deckward.grammar.findings import Finding, Severity
+
+from . import basis_sensitivity, koopmans_relaxation, overlap_conditioning, spin_contamination, unbound_anion
+
+PROBES = (basis_sensitivity, unbound_anion, spin_contamination, koopmans_relaxation, overlap_conditioning)
+PROBE_RULES = tuple(p.INFO for p in PROBES)
+
+
+def run_probes(ws, config=None, cache=None, select: Optional[set] = None) -> list[Finding]:
+    """Findings of every probe (or those in ``select``) on one workspace.
+    Decks with errors are not probed (their states may be incomplete); a
+    probe that fails reports it as information instead of stopping the others."""
+    from .common import ProbeContext
+
+    if any(f.severity is Severity.ERROR for f in ws.findings):
+        return []
+    ctx = ProbeContext(ws, config, cache)
+    out: list[Finding] = []
+    for module in PROBES:
+        info = module.INFO
+        if select is not None and info.id not in select:
+            continue
+        if config is not None and config.severity_for(info.id, info.severity) is None:
+            continue
+        try:
+            out.extend(module.probe(ctx))
+        except Exception as e:  # one failing probe must not hide the others
+            out.append(Finding(info.id, Severity.INFO, f"probe failed: {type(e).__name__}: {e}",
+                               ws.root.index.span(0, 0)))
+    return out

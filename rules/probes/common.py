@@ -1,0 +1,222 @@
+"""What every probe needs: Hartree-Fock results of a deck's states (cached
+like runs), limits from ``deckward.yaml`` and the ion pairs behind EA/IE
+derives.
+
+A probe recomputes a state at the Hartree-Fock level with the deck's own
+geometry (the starting geometry when the state says optimize(...)), charge,
+multiplicity, reference and basis.  HF results go through the runner's
+cache and executor, so a probe never repeats a calculation a run or an
+earlier probe has done, and each calculation stops at ``probe.time_limit_s``.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Optional
+
+from deckward.grammar import model as m
+from deckward.grammar.findings import Finding, RuleInfo, Severity, Span
+from deckward.grammar.resolve import Workspace
+
+from .. import basis_families, deck_facts, units
+from ..config import Config
+from ..runner.cache import RunCache
+from ..runner.mapping import MappingError, plan_state
+from ..runner.parallel import RunOptions, execute
+from ..runner.plan import ElementBasisPlan, StatePlan
+
+DEFAULT_MAX_BASIS_FUNCTIONS = 300
+DEFAULT_TIME_LIMIT_S = 120.0
+DEFAULT_THRESHOLD_EV = 0.1  # catalogue: "say 0.1 eV" (common practice, no source)
+
+
+@dataclass(frozen=True)
+class ProbeSettings:
+    max_basis_functions: int = DEFAULT_MAX_BASIS_FUNCTIONS
+    time_limit_s: float = DEFAULT_TIME_LIMIT_S
+    threshold_ev: float = DEFAULT_THRESHOLD_EV
+
+    @classmethod
+    def from_config(cls, config: Optional[Config]) -> "ProbeSettings":
+        p = config.probe if config is not None else {}
+        return cls(int(p.get("max_basis_functions", DEFAULT_MAX_BASIS_FUNCTIONS)),
+                   float(p.get("time_limit_s", DEFAULT_TIME_LIMIT_S)),
+                   float(p.get("threshold_ev", DEFAULT_THRESHOLD_EV)))
+
+
+class ProbeSkipped(Exception):
+    """A calculation a probe needs was not done (too large, failed)."""
+
+
+def hf_plan(plan: StatePlan) -> StatePlan:
+    """The same state at the Hartree-Fock level, at its starting geometry."""
+    return plan.with_changes(method="hf", kind="scf", family="hf", xc=None, frozen_core=False, optimize=False,
+                             frequencies=False)
+
+
+def augmented_plan(plan: StatePlan) -> Optional[StatePlan]:
+    """The plan with every library set replaced by its augmented
+    counterpart (added shells kept); None when no set has one."""
+    from .. import basis_library
+
+    changed = False
+    basis = []
+    labels = []
+    for symbol, eb in plan.basis:
+        aug = basis_families.augmented_counterpart(eb.library) if eb.library else None
+        if aug is not None:
+            changed = True
+            eb = ElementBasisPlan(basis_library.normalize(aug), eb.shells)
+        basis.append((symbol, eb))
+        label = aug or (basis_library.lookup(eb.library).name if eb.library and basis_library.lookup(eb.library) else eb.library)
+        if label and label not in labels:
+            labels.append(label)
+    if not changed:
+        return None
+    return plan.with_changes(basis=tuple(basis), basis_label=", ".join(labels))
+
+
+def partner_plan(plan: StatePlan, extra_electrons: int) -> StatePlan:
+    """The state with ``extra_electrons`` more electrons in the lowest spin
+    state (open shells unrestricted)."""
+    from .. import elements
+
+    electrons = sum(elements.lookup(a.symbol).z for a in plan.atoms if not a.ghost) - plan.charge + extra_electrons
+    spin = electrons % 2
+    reference = "restricted" if spin == 0 else "unrestricted"
+    return plan.with_changes(charge=plan.charge - extra_electrons, spin=spin, reference=reference,
+                             name=f"{plan.name}{'+' if extra_electrons < 0 else '-'}{abs(extra_electrons)}e")
+
+
+@dataclass(frozen=True)
+class IonPair:
+    """The two states behind an EA or IE derive: ``low`` has one electron
+    fewer than ``high``; EA = E(low) - E(high) (neutral minus anion) and
+    IE = E(low) - E(high) (cation minus neutral) alike."""
+
+    derive: m.Derive
+    quantity: str  # electron_affinity | ionization_energy
+    low: StatePlan
+    high: StatePlan
+    constructed: Optional[str]  # 'low' or 'high' when the probe made that state up
+
+
+def _electrons(plan: StatePlan) -> int:
+    from .. import elements
+
+    return sum(elements.lookup(a.symbol).z for a in plan.atoms if not a.ghost) - plan.charge
+
+
+class ProbeContext:
+    """Shared state of one ``run_probes`` call."""
+
+    def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None) -> None:
+        self.ws = ws
+        self.config = config
+        self.settings = ProbeSettings.from_config(config)
+        self.cache = cache or RunCache()
+        self._results: dict[str, dict] = {}
+        self._sizes: dict[str, int] = {}
+        self._plans: dict[str, Optional[StatePlan]] = {}
+
+    # -- plans ---------------------------------------------------------------
+    def plan(self, name: str) -> Optional[StatePlan]:
+        """The HF plan of a deck state; None when it cannot be mapped (the
+        static rules report why)."""
+        if name not in self._plans:
+            try:
+                self._plans[name] = hf_plan(plan_state(self.ws, name))
+            except (MappingError, KeyError):
+                self._plans[name] = None
+        return self._plans[name]
+
+    def state_span(self, name: str) -> Span:
+        rs = self.ws.states.get(name)
+        return rs.state.name.span if rs is not None else self.ws.root.index.span(0, 0)
+
+    # -- calculations ----------------------------------------------------------
+    def n_basis(self, plan: StatePlan) -> int:
+        key = self.cache.key(plan)
+        if key not in self._sizes:
+            from ..runner.pyscf_build import build_mole
+
+            self._sizes[key] = int(build_mole(plan).nao)
+        return self._sizes[key]
+
+    def too_large(self, plan: StatePlan) -> Optional[str]:
+        n = self.n_basis(plan)
+        limit = self.settings.max_basis_functions
+        if n > limit:
+            return (f"{n} basis functions with {plan.basis_label} exceed probe.max_basis_functions = {limit} "
+                    "(raise it in deckward.yaml to probe anyway)")
+        return None
+
+    def hf(self, plan: StatePlan) -> dict:
+        """The HF result of a plan; ProbeSkipped when too large or failed."""
+        key = self.cache.key(plan)
+        if key not in self._results:
+            reason = self.too_large(plan)
+            if reason is not None:
+                raise ProbeSkipped(reason)
+            options = RunOptions(jobs=1, time_limit_s=self.settings.time_limit_s)
+            self._results[key] = execute([plan], self.cache, options)[plan.name]
+        result = self._results[key]
+        if result["status"] != "ok":
+            raise ProbeSkipped(f"HF/{plan.basis_label} for `{plan.name}` {result['status']}: {result['reason']}")
+        return result
+
+    # -- derives -----------------------------------------------------------------
+    def ion_pairs(self, quantities=("electron_affinity", "ionization_energy"),
+                  construct: bool = False) -> list[IonPair]:
+        """EA/IE derives as pairs of states.  An energy difference gives both
+        states; with ``construct``, an orbital-only derive gets its missing
+        partner made up (the cation of an IE, the anion of an EA)."""
+        pairs = []
+        for d in self.ws.derives:
+            q = self.ws.quantity_of(d)
+            if q not in quantities:
+                continue
+            diff = deck_facts.energy_difference(d)
+            if diff is not None:
+                a, b = self.plan(diff.plus), self.plan(diff.minus)
+                if a is None or b is None:
+                    continue
+                if _electrons(a) + 1 == _electrons(b):
+                    pairs.append(IonPair(d, q, a, b, None))
+                continue
+            if not construct:
+                continue
+            form = deck_facts.linear_form(d.expr)
+            if form.energies or len(form.orbitals) != 1:
+                continue
+            node = form.orbitals[0][1]
+            base = self.plan(node.state.value)
+            if base is None:
+                continue
+            if q == "ionization_energy":
+                pairs.append(IonPair(d, q, partner_plan(base, -1), base, "low"))
+            else:
+                pairs.append(IonPair(d, q, base, partner_plan(base, +1), "high"))
+        return pairs
+
+    def delta_and_orbital_ev(self, pair: IonPair, low: StatePlan, high: StatePlan) -> tuple[float, float]:
+        """(delta-SCF value, orbital-energy estimate) in eV: for an EA
+        -e(LUMO) of the neutral, for an IE -e(HOMO) of the neutral."""
+        r_low, r_high = self.hf(low), self.hf(high)
+        delta = units.from_hartree(r_low["energy"] - r_high["energy"], "ev")
+        if pair.quantity == "electron_affinity":
+            orb = -r_low["orbitals"]["any"]["virtual"][0]
+        else:
+            orb = -r_high["orbitals"]["any"]["occupied"][0]
+        return delta, units.from_hartree(orb, "ev")
+
+
+def finding(info: RuleInfo, span: Span, message: str, evidence: dict, severity: Optional[Severity] = None) -> Finding:
+    return Finding(info.id, severity or info.severity, message, span, evidence=tuple(evidence.items()))
+
+
+def skipped(info: RuleInfo, span: Span, reason: str) -> Finding:
+    return Finding(info.id, Severity.INFO, f"probe skipped: {reason}", span, evidence=(("skipped", reason),))
+
+
+def signed(value: float, digits: int = 2) -> str:
+    return f"{value:+.{digits}f}"

@@ -1,0 +1,74 @@
+"""Results cached per state, keyed by the content hash of its plan.
+
+The key covers everything that determines a state's numbers (see
+``plan.content_hash``: atoms, charge, spin, basis with added shells, method,
+reference, frozen core, optimisation, frequencies) plus the PySCF version,
+so editing one state of a deck recomputes that state only, and upgrading
+PySCF recomputes everything.  Only finished states are stored: a failure
+may be a time limit or memory, and the next run should try again.
+
+Folder: ``$DECKWARD_CACHE_DIR/runs`` if set, else ``~/.cache/deckward/runs``;
+PySCF's log of a state lives beside its result (``<key>.log``).
+"""
+from __future__ import annotations
+
+import json
+import os
+import tempfile
+from functools import lru_cache
+from typing import Optional
+
+from .plan import StatePlan, content_hash
+
+
+def default_cache_dir() -> str:
+    base = os.environ.get("DECKWARD_CACHE_DIR") or os.path.join(os.path.expanduser("~"), ".cache", "deckward")
+    return os.path.join(base, "runs")
+
+
+@lru_cache(maxsize=1)
+def pyscf_version() -> str:
+    """The installed PySCF version, read without importing PySCF."""
+    from importlib import metadata
+
+    try:
+        return metadata.version("pyscf")
+    except metadata.PackageNotFoundError:
+        return "not installed"
+
+
+class RunCache:
+    """A folder of ``<key>.json`` results (``enabled=False``: never read or
+    written, but log files still go to the folder)."""
+
+    def __init__(self, folder: Optional[str] = None, enabled: bool = True) -> None:
+        self.folder = folder or default_cache_dir()
+        self.enabled = enabled
+
+    def key(self, plan: StatePlan) -> str:
+        return content_hash(plan, pyscf_version())
+
+    def log_path(self, key: str) -> str:
+        os.makedirs(self.folder, exist_ok=True)
+        return os.path.join(self.folder, key + ".log")
+
+    def get(self, key: str) -> Optional[dict]:
+        if not self.enabled:
+            return None
+        path = os.path.join(self.folder, key + ".json")
+        try:
+            with open(path, encoding="utf-8") as f:
+                data = json.load(f)
+        except (OSError, ValueError):
+            return None
+        return data if isinstance(data, dict) and data.get("status") == "ok" else None
+
+    def put(self, key: str, result: dict) -> None:
+        if not self.enabled or result.get("status") != "ok":
+            return
+        os.makedirs(self.folder, exist_ok=True)
+        stored = dict(result, cached=False)
+        fd, tmp = tempfile.mkstemp(dir=self.folder, prefix=".tmp-", suffix=".json")
+        with os.fdopen(fd, "w", encoding="utf-8") as f:
+            json.dump(stored, f)
+        os.replace(tmp, os.path.join(self.folder, key + ".json"))  # atomic: parallel runs never see half a file

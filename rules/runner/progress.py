@@ -1,0 +1,81 @@
+"""The progress display on standard error: which state runs, for how long.
+
+On a terminal one status line is redrawn every half second; otherwise (a
+log file, a CI job) one line is written when a state starts and one when it
+ends, so the output stays readable.
+"""
+from __future__ import annotations
+
+import sys
+import threading
+import time
+from typing import Optional, TextIO
+
+
+class Progress:
+    def __init__(self, total: int, stream: Optional[TextIO] = None, enabled: bool = True) -> None:
+        self.total = total
+        self.stream = stream if stream is not None else sys.stderr
+        self.enabled = enabled
+        self.live = enabled and hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.running: dict[str, float] = {}
+        self.done = 0
+        self.launched = 0
+        self._lock = threading.Lock()
+        self._stop = threading.Event()
+        self._thread: Optional[threading.Thread] = None
+
+    def __enter__(self) -> "Progress":
+        if self.live:
+            self._thread = threading.Thread(target=self._tick, daemon=True)
+            self._thread.start()
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self._stop.set()
+        if self._thread is not None:
+            self._thread.join()
+        if self.live:
+            self._write("\r\x1b[K")
+
+    def _write(self, text: str) -> None:
+        try:
+            self.stream.write(text)
+            self.stream.flush()
+        except (OSError, ValueError):
+            pass
+
+    def status_line(self) -> str:
+        now = time.monotonic()
+        parts = [f"{name} {now - t0:.1f} s" for name, t0 in self.running.items()]
+        return f"[{self.done}/{self.total}] running: " + (", ".join(parts) if parts else "-")
+
+    def _tick(self) -> None:
+        while not self._stop.wait(0.5):
+            with self._lock:
+                self._write("\r\x1b[K" + self.status_line())
+
+    def _line(self, text: str) -> None:
+        if not self.enabled:
+            return
+        with self._lock:
+            self._write(("\r\x1b[K" if self.live else "") + text + "\n")
+
+    def started(self, name: str) -> None:
+        self.running[name] = time.monotonic()
+        self.launched += 1
+        if not self.live:
+            self._line(f"[{self.done}/{self.total} done] {name}: running (state {self.launched} of {self.total})")
+
+    def finished(self, name: str, result: dict) -> None:
+        t0 = self.running.pop(name, None)
+        self.done += 1
+        if result.get("cached"):
+            self._line(f"[{self.done}/{self.total}] {name}: cached")
+            return
+        took = f"{time.monotonic() - t0:.1f} s" if t0 is not None else ""
+        status = result.get("status")
+        if status == "ok":
+            self._line(f"[{self.done}/{self.total}] {name}: done in {took}")
+        else:
+            self._line(f"[{self.done}/{self.total}] {name}: {status.upper()} after {took}: {result.get('reason')}")

@@ -1,0 +1,162 @@
+"""The deckward language server: one ``LanguageServer`` and its features.
+
+Each feature lives in its own module with a ``register(server)`` function;
+this module holds the shared state (open buffers, analyses, the worker
+thread that runs checks) and starts the server on stdio or TCP.  Standard
+output carries the protocol only: anything else a library might print is
+sent to standard error.
+"""
+from __future__ import annotations
+
+import asyncio
+import logging
+import sys
+from concurrent.futures import ThreadPoolExecutor
+from typing import Optional
+
+from lsprotocol import types as t
+from pygls.lsp.server import LanguageServer
+
+from deckward import __version__
+
+from .positions import encoding_of
+from .workspace import Analysis, DeckWorkspace, uri_to_path
+
+NAME = "deckward"
+
+
+class DeckServer(LanguageServer):
+    """A language server whose documents are decks."""
+
+    def __init__(self) -> None:
+        super().__init__(NAME, __version__, text_document_sync_kind=t.TextDocumentSyncKind.Incremental)
+        from .diagnostics import Publisher
+
+        self.store = DeckWorkspace()
+        self.publisher = Publisher(self)
+        self.executor = ThreadPoolExecutor(max_workers=1, thread_name_prefix="deckward-check")
+        self.push = True  # publish diagnostics (clients without pull support)
+        self.pull_refresh = False
+        self.generation = 0  # bumped whenever anything a check reads may have changed
+
+    # -- document state ---------------------------------------------------
+    def is_open(self, uri: str) -> bool:
+        return uri in self.workspace.text_documents
+
+    def is_current(self, uri: str, analysis: Analysis) -> bool:
+        doc = self.workspace.text_documents.get(uri)
+        return doc is not None and doc.version == analysis.version and doc.source == analysis.text
+
+    async def analysis(self, uri: str) -> Optional[Analysis]:
+        """The analysis of the open document ``uri`` at its current text
+        (None when it is not open)."""
+        doc = self.workspace.text_documents.get(uri)
+        if doc is None:
+            return None
+        cached = self.store.analyses.get(uri)
+        if cached is not None and cached.generation == self.generation and self.is_current(uri, cached):
+            return cached
+        text, version, generation = doc.source, doc.version, self.generation
+        loop = asyncio.get_running_loop()
+        result = await loop.run_in_executor(self.executor, self.store.analyse, uri, text, version)
+        result.generation = generation
+        if self.is_open(uri) and self.is_current(uri, result):
+            self.store.analyses[uri] = result
+        return result
+
+    def changed(self) -> None:
+        self.generation += 1
+
+    # -- workspace events -------------------------------------------------
+    def config_changed(self) -> None:
+        """deckward.yaml changed: re-read it and re-check every open deck."""
+        self.store.forget_configs()
+        self.changed()
+        for uri in list(self.workspace.text_documents):
+            if not self.store.is_config(uri_to_path(uri)):
+                self.publisher.schedule(uri, 0.0)
+        self.refresh_pull_diagnostics()
+
+    def refresh_pull_diagnostics(self) -> None:
+        """Ask a pulling client to pull again (other files changed)."""
+        if not self.push and self.pull_refresh:
+            try:
+                self.workspace_diagnostic_refresh(None)
+            except Exception:  # a client that stopped listening
+                pass
+
+    def report_internal_error(self, uri: str, error: Exception) -> None:
+        message = f"deckward could not check this document: {type(error).__name__}: {error}"
+        logging.getLogger(__name__).error("%s (%s)", message, uri)
+        self.window_log_message(t.LogMessageParams(type=t.MessageType.Error, message=f"{uri}: {message}"))
+        if self.push and self.is_open(uri):
+            self.text_document_publish_diagnostics(t.PublishDiagnosticsParams(uri=uri, diagnostics=[t.Diagnostic(
+                range=t.Range(start=t.Position(line=0, character=0), end=t.Position(line=0, character=0)),
+                message=message, severity=t.DiagnosticSeverity.Error, code="internal-error", source=NAME)]))
+
+
+def _register_lifecycle(server: DeckServer) -> None:
+    @server.feature(t.INITIALIZE)
+    def initialize(ls: DeckServer, params: t.InitializeParams):
+        ls.store.encoding = encoding_of(ls.workspace.position_encoding)
+        folders = [uri_to_path(f.uri) for f in params.workspace_folders or []]
+        if not folders and (params.root_uri or params.root_path):
+            folders = [uri_to_path(params.root_uri) if params.root_uri else params.root_path]
+        ls.store.folders = folders
+        caps = params.capabilities
+        ls.push = caps.text_document is None or caps.text_document.diagnostic is None
+        ws_caps = caps.workspace
+        ls.pull_refresh = bool(ws_caps and ws_caps.diagnostics and ws_caps.diagnostics.refresh_support)
+
+    @server.feature(t.INITIALIZED)
+    async def initialized(ls: DeckServer, params: t.InitializedParams):
+        caps = ls.client_capabilities.workspace
+        watch = caps and caps.did_change_watched_files and caps.did_change_watched_files.dynamic_registration
+        if not watch:
+            return
+        try:
+            await ls.client_register_capability_async(t.RegistrationParams(registrations=[t.Registration(
+                id="deckward-watch", method=t.WORKSPACE_DID_CHANGE_WATCHED_FILES,
+                register_options=t.DidChangeWatchedFilesRegistrationOptions(watchers=[
+                    t.FileSystemWatcher(glob_pattern="**/deckward.yaml"),
+                    t.FileSystemWatcher(glob_pattern="**/*.deck"),
+                ]))]))
+        except Exception as e:  # the client refused: mtime checks still catch config edits
+            logging.getLogger(__name__).info("file watching not available: %s", e)
+
+    @server.feature(t.WORKSPACE_DID_CHANGE_WATCHED_FILES)
+    def watched(ls: DeckServer, params: t.DidChangeWatchedFilesParams):
+        paths = [uri_to_path(c.uri) for c in params.changes]
+        if any(ls.store.is_config(p) for p in paths):
+            ls.config_changed()
+            return
+        ls.changed()
+        for path in paths:
+            ls.store.loader.forget(path)
+            for uri in ls.store.dependents(path):
+                if ls.is_open(uri):
+                    ls.publisher.schedule(uri, 0.0)
+        ls.refresh_pull_diagnostics()
+
+
+def build_server() -> DeckServer:
+    """A server with every feature registered."""
+    from . import actions, completion, diagnostics, formatting, hover, navigation
+
+    server = DeckServer()
+    _register_lifecycle(server)
+    for module in (diagnostics, actions, hover, completion, navigation, formatting):
+        module.register(server)
+    return server
+
+
+def start(tcp: Optional[tuple[str, int]] = None) -> None:
+    """Run the server on stdio (default) or on a TCP address."""
+    logging.basicConfig(stream=sys.stderr, level=logging.WARNING, format="deckward-lsp: %(levelname)s: %(message)s")
+    server = build_server()
+    if tcp is not None:
+        server.start_tcp(*tcp)
+        return
+    protocol_out = sys.stdout.buffer
+    sys.stdout = sys.stderr  # a stray print must not corrupt the protocol stream
+    server.start_io(sys.stdin.buffer, protocol_out)

@@ -1,0 +1,149 @@
+"""The server's view of the project: open buffers, configuration, analyses.
+
+Checking an open document is the command line's check on the buffer's text:
+one ``Loader`` whose overlay holds every open buffer (so a deck that uses an
+unsaved file sees the unsaved text), ``resolve`` and ``check_workspace``.
+``deckward.yaml`` is found like the command line finds it and re-read when
+its modification time changes or the client reports a change.  Each
+analysis remembers the files it read, so that editing one file re-checks
+the open decks that use it.
+"""
+from __future__ import annotations
+
+import os
+import threading
+from dataclasses import dataclass
+from typing import Optional
+
+from pygls.uris import from_fs_path, to_fs_path
+
+from deckward.grammar.findings import Finding
+from deckward.grammar.resolve import Loader, Workspace, resolve
+from deckward.rules.config import CONFIG_NAME, Config, find_config, load_config
+from deckward.rules.engine import check_workspace, known_rule_ids
+
+from .positions import UTF16, PositionMap
+
+
+def uri_to_path(uri: str) -> str:
+    path = to_fs_path(uri) if uri.startswith("file:") else None
+    return os.path.abspath(path if path else uri)
+
+
+def path_to_uri(path: str) -> str:
+    return from_fs_path(os.path.abspath(path)) or path
+
+
+@dataclass
+class Analysis:
+    """One check of one document at one version."""
+
+    uri: str
+    path: str
+    version: Optional[int]
+    text: str
+    workspace: Workspace
+    findings: list[Finding]  # every finding of the workspace, suppressed ones included
+    config: Config
+    positions: PositionMap
+    generation: int = 0  # the server's change counter when the check started
+
+    @property
+    def own_findings(self) -> list[Finding]:
+        """Active findings located in this document."""
+        return [f for f in self.findings if f.suppressed is None and f.span.path == self.path]
+
+    @property
+    def file_paths(self) -> set[str]:
+        return {os.path.abspath(f.path) for f in self.workspace.files}
+
+    def positions_for(self, path: str) -> Optional[PositionMap]:
+        """Position conversion for another file of the workspace."""
+        if path == self.path:
+            return self.positions
+        parsed = self.workspace.file(path)
+        if parsed is None:
+            return None
+        return PositionMap(parsed.index.text, self.positions.encoding, parsed.index)
+
+
+class DeckWorkspace:
+    """Open buffers, configurations and the latest analysis of each buffer.
+
+    Analyses run on one worker thread at a time (``lock``); the overlay is
+    only written from the event loop."""
+
+    def __init__(self) -> None:
+        self.overlay: dict[str, str] = {}
+        self.loader = Loader(self.overlay)
+        self.folders: list[str] = []
+        self.encoding = UTF16
+        self.analyses: dict[str, Analysis] = {}
+        self.lock = threading.Lock()
+        self._configs: dict[str, tuple[tuple, Config]] = {}
+
+    # -- buffers ----------------------------------------------------------
+    def set_buffer(self, uri: str, text: str) -> None:
+        self.overlay[uri_to_path(uri)] = text
+
+    def drop_buffer(self, uri: str) -> None:
+        path = uri_to_path(uri)
+        self.overlay.pop(path, None)
+        self.loader.forget(path)
+        self.analyses.pop(uri, None)
+
+    # -- configuration ----------------------------------------------------
+    def config_for(self, path: str) -> Config:
+        """The configuration that applies to ``path``, re-read when the file
+        changed on disk."""
+        found = find_config(path)
+        if found is None:
+            return Config()
+        try:
+            st = os.stat(found)
+            key = (st.st_mtime_ns, st.st_size)
+        except OSError:
+            key = None
+        cached = self._configs.get(found)
+        if cached is not None and cached[0] == key:
+            return cached[1]
+        config = load_config(found, known_rule_ids())
+        self._configs[found] = (key, config)
+        return config
+
+    def forget_configs(self) -> None:
+        self._configs.clear()
+
+    def root_for(self, path: str, config: Config) -> str:
+        """The workspace root: the configuration's folder, else the client's
+        workspace folder holding the file, else the file's folder."""
+        if config.root:
+            return config.root
+        for folder in sorted(self.folders, key=len, reverse=True):
+            if os.path.commonpath([folder, path]) == folder:
+                return folder
+        return os.path.dirname(path)
+
+    # -- checking ---------------------------------------------------------
+    def analyse(self, uri: str, text: str, version: Optional[int]) -> Analysis:
+        """Resolve and check ``text`` as the document ``uri`` (thread-safe)."""
+        path = uri_to_path(uri)
+        with self.lock:
+            config = self.config_for(path)
+            ws = resolve(path, self.loader, self.root_for(path, config), text=text)
+            findings = check_workspace(ws, config)
+            analysis = Analysis(uri, path, version, text, ws, findings, config,
+                                PositionMap(text, self.encoding, ws.root.index))
+        return analysis
+
+    def recheck_text(self, uri: str, text: str) -> list[Finding]:
+        """Findings of ``text`` as the document ``uri``, for the fix loop."""
+        return self.analyse(uri, text, None).findings
+
+    def dependents(self, path: str) -> list[str]:
+        """URIs of analysed documents that read ``path`` (other than itself)."""
+        path = os.path.abspath(path)
+        return [uri for uri, a in list(self.analyses.items()) if a.path != path and path in a.file_paths]
+
+    def is_config(self, path: str) -> bool:
+        return os.path.basename(path) == CONFIG_NAME

@@ -1,0 +1,246 @@
+"""Checking many decks: on every core, and only the decks that changed.
+
+``check_tasks`` takes the decks to check (each with its workspace root) and
+returns their findings in task order, whatever the number of workers, so
+output does not depend on ``--jobs``.  Work goes to a process pool in chunks
+(one pickled batch of paths out, one batch of findings back) because a
+deck takes milliseconds and per-deck messages would cost more than the
+checking.  Below ``IN_PROCESS_BELOW`` decks it stays in this process:
+starting workers costs more than it saves.  Each chunk has its own
+``Loader``, so a file used by many decks is parsed once per chunk and a
+worker does not keep thousands of parsed decks alive.
+
+With a cache (``findings_cache.FindingsCache``), each worker looks a deck
+up before checking it and stores what it found afterwards; entries are
+renamed into place, so workers never see each other's half-written files.
+
+Probes run PySCF, which uses every core itself and has its own result
+cache, so a probing check stays in one process.
+"""
+from __future__ import annotations
+
+import math
+import os
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass, field
+from typing import Optional
+
+from deckward.grammar.findings import Finding
+from deckward.grammar.resolve import Loader, Workspace, resolve
+from deckward.rules.config import Config
+from deckward.rules.engine import check_workspace
+
+from .findings_cache import FindingsCache, config_fingerprint, entry_key
+
+IN_PROCESS_BELOW = 50  # decks; fewer than this are checked without workers
+MAX_CHUNK = 64
+
+
+class DeckUnreadable(Exception):
+    """A deck named for checking cannot be read (``path``, ``reason``)."""
+
+    def __init__(self, path: str, reason: str) -> None:
+        super().__init__(f"{path}: cannot be read ({reason})")
+        self.path = path
+        self.reason = reason
+
+
+@dataclass(frozen=True)
+class Task:
+    path: str  # as given / discovered: findings carry this path
+    root: str  # the workspace root the deck resolves in
+
+
+@dataclass
+class CheckStats:
+    decks: int = 0
+    checked: int = 0  # decks actually parsed and checked
+    cache_hits: int = 0
+    cache_misses: int = 0
+    cache_write_errors: int = 0
+    workers: int = 1
+    notes: list[str] = field(default_factory=list)
+
+
+def used_paths(ws: Workspace) -> list[str]:
+    """Every file whose contents can change this deck's findings: the deck,
+    each file it uses (directly or not), and each ``use`` target that could
+    not be loaded (creating it would change the findings)."""
+    out: list[str] = []
+    seen: set[str] = set()
+
+    def add(p: str) -> None:
+        key = os.path.abspath(p)
+        if key not in seen:
+            seen.add(key)
+            out.append(p)
+
+    for pf in ws.files:
+        add(pf.path)
+    for pf in ws.files:
+        for use in pf.deck.uses:
+            add(os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value)))
+    return out
+
+
+def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[list[Finding], list[str]]:
+    """Findings of one deck and the files they depend on (raises
+    DeckUnreadable)."""
+    try:
+        ws = resolve(task.path, loader, task.root)
+    except OSError as e:
+        raise DeckUnreadable(task.path, str(e.strerror or e))
+    extra: list[Finding] = []
+    if probe:
+        from deckward.rules.probes import run_probes
+
+        extra = run_probes(ws, config)
+    return check_workspace(ws, config, extra=extra), used_paths(ws)
+
+
+class _Checker:
+    """Checks tasks with an optional cache; one per process."""
+
+    def __init__(self, config: Config, probe: bool, cache_dir: Optional[str]) -> None:
+        self.config = config
+        self.probe = probe
+        self.cache = FindingsCache(cache_dir) if cache_dir else None
+        self.config_print = config_fingerprint(config) if cache_dir else ""
+        self.checked = 0
+
+    def run(self, tasks: list[Task], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
+        """``("ok", findings)`` or ``("unreadable", reason)`` per task, in order."""
+        loader = loader or Loader()
+        out: list[tuple[str, object]] = []
+        for task in tasks:
+            key = None
+            if self.cache is not None:
+                digest = self.cache.digest(task.path)
+                if digest is None:  # unreadable: let resolve() say why
+                    key = None
+                else:
+                    key = entry_key(task.path, task.root, digest, self.config_print, self.probe)
+                    found = self.cache.get(key)
+                    if found is not None:
+                        out.append(("ok", found))
+                        continue
+            try:
+                findings, deps = check_one(task, loader, self.config, self.probe)
+            except DeckUnreadable as e:
+                out.append(("unreadable", e.reason))
+                continue
+            self.checked += 1
+            if key is not None:
+                self.cache.put(key, deps, findings)
+            out.append(("ok", findings))
+        return out
+
+    def counters(self) -> tuple[int, int, int, int]:
+        c = self.cache
+        return (self.checked, c.hits if c else 0, c.misses if c else 0, c.write_errors if c else 0)
+
+
+# -- worker side -------------------------------------------------------------------------
+
+_WORKER: Optional[_Checker] = None
+
+
+def _init_worker(config: Config, probe: bool, cache_dir: Optional[str]) -> None:
+    global _WORKER
+    _WORKER = _Checker(config, probe, cache_dir)
+
+
+def _run_chunk(tasks: list[Task]):
+    """One chunk in a worker: its results and the worker's counters since
+    the previous chunk (so the parent can add them up)."""
+    assert _WORKER is not None
+    before = _WORKER.counters()
+    results = _WORKER.run(tasks)
+    after = _WORKER.counters()
+    return results, tuple(a - b for a, b in zip(after, before))
+
+
+def chunks(tasks: list[Task], jobs: int) -> list[list[Task]]:
+    """About eight chunks a worker (so a slow chunk does not leave the
+    others idle), at most ``MAX_CHUNK`` decks each."""
+    size = max(1, min(MAX_CHUNK, math.ceil(len(tasks) / (jobs * 8))))
+    return [tasks[i : i + size] for i in range(0, len(tasks), size)]
+
+
+def default_jobs() -> int:
+    try:
+        return max(1, len(os.sched_getaffinity(0)))
+    except (AttributeError, OSError):
+        return max(1, os.cpu_count() or 1)
+
+
+def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: int = 1,
+                cache_dir: Optional[str] = None, loader: Optional[Loader] = None) -> tuple[list[Finding], CheckStats]:
+    """Findings of every task, concatenated in task order (raises
+    DeckUnreadable for the first unreadable deck in that order)."""
+    stats = CheckStats(decks=len(tasks))
+    if jobs < 1:
+        jobs = default_jobs()
+    in_process = jobs == 1 or len(tasks) < IN_PROCESS_BELOW or probe
+    if in_process:
+        checker = _Checker(config, probe, cache_dir)
+        results = checker.run(tasks, loader)
+        counters = [checker.counters()]
+    else:
+        parts = chunks(tasks, jobs)
+        workers = min(jobs, len(parts))
+        stats.workers = workers
+        results = []
+        counters = []
+        with ProcessPoolExecutor(max_workers=workers, initializer=_init_worker,
+                                 initargs=(config, probe, cache_dir)) as pool:
+            for part_results, part_counters in pool.map(_run_chunk, parts):
+                results.extend(part_results)
+                counters.append(part_counters)
+    for checked, hits, misses, write_errors in counters:
+        stats.checked += checked
+        stats.cache_hits += hits
+        stats.cache_misses += misses
+        stats.cache_write_errors += write_errors
+    if stats.cache_write_errors:
+        stats.notes.append(f"note: the findings cache in {cache_dir} could not be written "
+                           f"({stats.cache_write_errors} entries); checking went on without it")
+    findings: list[Finding] = []
+    for task, (status, value) in zip(tasks, results):
+        if status == "unreadable":
+            raise DeckUnreadable(task.path, str(value))
+        findings.extend(value)  # type: ignore[arg-type]
+    return findings, stats
+
+
+# -- command-line options shared by ``check`` and ``review`` ------------------------------
+
+def add_scale_arguments(p) -> None:
+    """``--jobs``, ``--cache-dir`` and ``--no-cache``."""
+    group = p.add_argument_group("scale")
+    group.add_argument("--jobs", "-j", type=_jobs_value, default=0, metavar="N",
+                       help="worker processes (default: one per core; 1: no workers)")
+    group.add_argument("--cache-dir", metavar="DIR",
+                       help="findings cache folder (default: $DECKWARD_CACHE_DIR/findings or ~/.cache/deckward/findings)")
+    group.add_argument("--no-cache", action="store_true", help="neither read nor write the findings cache")
+
+
+def _jobs_value(text: str) -> int:
+    import argparse
+
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--jobs takes a whole number, not {text!r}")
+    if n < 0:
+        raise argparse.ArgumentTypeError("--jobs must be 0 (one per core) or more")
+    return n
+
+
+def scale_options(args) -> dict:
+    """Keyword arguments for ``check_paths`` from the parsed options."""
+    from .findings_cache import default_cache_dir
+
+    jobs = getattr(args, "jobs", 1)
+    cache_dir = None if getattr(args, "no_cache", True) else (getattr(args, "cache_dir", None) or default_cache_dir())
+    return {"jobs": jobs if jobs else default_jobs(), "cache_dir": cache_dir}

@@ -1,0 +1,106 @@
+"""Shared pieces of the language-server tests: the server command, a test
+workspace whose deckward.yaml keeps only chosen rules on, and a record of
+every diagnostics notification (with its version) the client received."""
+from __future__ import annotations
+
+import asyncio
+import os
+import sys
+import time
+
+from lsprotocol import types as t
+from pygls.uris import from_fs_path
+
+SERVER_COMMAND = [sys.executable, "-m", "deckward", "serve"]
+TIMEOUT_S = 15.0
+
+
+def write_workspace(folder, files: dict, keep=("restricted-open-shell",)) -> None:
+    """Write ``files`` and a deckward.yaml that turns off every catalogue
+    rule not in ``keep`` (rules are added all the time; the tests assert on
+    exact findings of the rules they name)."""
+    from deckward.rules.registry import all_rules
+
+    language = {"syntax-error", "unknown-key", "duplicate-key", "invalid-value", "undefined-name",
+                "duplicate-name", "use-outside-workspace", "internal-error"}
+    lines = ["rules:"]
+    for rid, rule in sorted(all_rules().items()):
+        if rid not in keep and rid not in language:
+            lines.append(f"  {rid}: off")
+    if len(lines) == 1:
+        lines = []
+    files = dict(files)
+    files.setdefault("deckward.yaml", "\n".join(lines) + "\n")
+    for rel, text in files.items():
+        path = os.path.join(str(folder), rel)
+        os.makedirs(os.path.dirname(path), exist_ok=True)
+        with open(path, "w", encoding="utf-8", newline="") as f:
+            f.write(text)
+
+
+def uri_of(folder, rel: str) -> str:
+    return from_fs_path(os.path.join(str(folder), rel))
+
+
+def record_diagnostics(client) -> None:
+    """Keep every publishDiagnostics params in ``client.published``."""
+    client.published = []
+    protocol = client.protocol
+    original = protocol._handle_notification
+
+    def handle(method_name, params):
+        if method_name == t.TEXT_DOCUMENT_PUBLISH_DIAGNOSTICS:
+            client.published.append(params)
+        return original(method_name, params)
+
+    protocol._handle_notification = handle
+
+
+async def wait_for_diagnostics(client, uri: str, version, timeout: float = TIMEOUT_S):
+    """The diagnostics published for ``uri`` at ``version``."""
+    deadline = time.monotonic() + timeout
+    while time.monotonic() < deadline:
+        for p in client.published:
+            if p.uri == uri and p.version == version:
+                return p.diagnostics
+        await asyncio.sleep(0.01)
+    seen = [(p.uri.rsplit("/", 1)[-1], p.version) for p in client.published]
+    raise AssertionError(f"no diagnostics for {uri} version {version}; received {seen}")
+
+
+def open_document(client, uri: str, text: str, version: int = 1) -> None:
+    client.text_document_did_open(t.DidOpenTextDocumentParams(
+        text_document=t.TextDocumentItem(uri=uri, language_id="deck", version=version, text=text)))
+
+
+def change_document(client, uri: str, text: str, version: int) -> None:
+    client.text_document_did_change(t.DidChangeTextDocumentParams(
+        text_document=t.VersionedTextDocumentIdentifier(uri=uri, version=version),
+        content_changes=[t.TextDocumentContentChangeWholeDocument(text=text)]))
+
+
+def apply_text_edits(text: str, edits) -> str:
+    """Apply LSP edits (UTF-16 positions, \\n lines) to ``text``."""
+    lines = text.split("\n")
+
+    def offset(pos):
+        start = sum(len(line) + 1 for line in lines[: pos.line])
+        line = lines[pos.line] if pos.line < len(lines) else ""
+        units = 0
+        for i, ch in enumerate(line):
+            if units >= pos.character:
+                return start + i
+            units += 2 if ord(ch) > 0xFFFF else 1
+        return start + len(line)
+
+    ordered = sorted(edits, key=lambda e: (e.range.start.line, e.range.start.character), reverse=True)
+    for e in ordered:
+        text = text[: offset(e.range.start)] + e.new_text + text[offset(e.range.end):]
+        lines = text.split("\n")
+    return text
+
+
+def brief(diagnostics) -> list[tuple]:
+    """(code, start line, start char, end line, end char, message) sorted."""
+    return sorted((d.code, d.range.start.line, d.range.start.character, d.range.end.line, d.range.end.character,
+                   d.message) for d in diagnostics)
