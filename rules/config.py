@@ -11,8 +11,6 @@ import os
 from dataclasses import dataclass, field
 from typing import Optional
 
-import yaml
-
 from deckward.grammar.build import did_you_mean
 from deckward.grammar.findings import Finding, RuleInfo, Severity
 from deckward.grammar.text_index import LineIndex
@@ -88,6 +86,8 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
     """Read and validate a configuration file (``None``: defaults)."""
     if path is None:
         return Config()
+    import yaml  # only when there is a file to read: keeps start-up light
+
     cfg = Config(path=path, root=os.path.dirname(os.path.abspath(path)))
     try:
         with open(path, "rb") as f:
@@ -155,6 +155,8 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
 
 
 def _rules(node, cfg: Config, known: set[str], report) -> None:
+    import yaml
+
     if not isinstance(node, yaml.MappingNode):
         report(node, "`rules` must map rule ids to error | warning | info | off")
         return

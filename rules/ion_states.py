@@ -451,3 +451,17 @@ def energy_difference_fix(ws: Workspace, d: IonDerive, add_missing: bool = False
         return None
     text = difference_text(d.quantity, pair.neutral.name, pair.ion.name)
     return fix(f"Compute `{d.name}` as {text}", edit, risky=True)
+
+
+def reversed_differences(ws: Workspace, quantity: str):
+    """(derive, first state, second state) of each IE/EA of ``quantity``
+    written with its operands the wrong way round: for both quantities the
+    state with more electrons must come second, so a charge step of -1 from
+    the first operand to the second means the sign is flipped."""
+    for d in ion_derives(ws):
+        states = difference_states(ws, d)
+        if d.quantity != quantity or states is None:
+            continue
+        plus, minus = states
+        if plus.charge - minus.charge == -1:
+            yield d, plus, minus

@@ -5,14 +5,16 @@ returns their findings in task order, whatever the number of workers, so
 output does not depend on ``--jobs``.  Work goes to a process pool in chunks
 (one pickled batch of paths out, one batch of findings back) because a
 deck takes milliseconds and per-deck messages would cost more than the
-checking.  Below ``IN_PROCESS_BELOW`` decks it stays in this process:
+checking.  Below ``IN_PROCESS_BELOW`` decks to check it stays in this process:
 starting workers costs more than it saves.  Each chunk has its own
 ``Loader``, so a file used by many decks is parsed once per chunk and a
 worker does not keep thousands of parsed decks alive.
 
-With a cache (``findings_cache.FindingsCache``), each worker looks a deck
-up before checking it and stores what it found afterwards; entries are
-renamed into place, so workers never see each other's half-written files.
+With a cache (``findings_cache.FindingsCache``), this process looks every
+deck up first (hashing a file and reading an entry costs far less than
+shipping the deck to a worker), and only the misses are checked; whoever
+checks a deck stores its entry, renamed into place, so workers never see
+each other's half-written files.
 
 Probes run PySCF, which uses every core itself and has its own result
 cache, so a probing check stays in one process.
@@ -99,7 +101,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[
 
 
 class _Checker:
-    """Checks tasks with an optional cache; one per process."""
+    """Looks decks up in the cache and checks the others; one per process."""
 
     def __init__(self, config: Config, probe: bool, cache_dir: Optional[str]) -> None:
         self.config = config
@@ -108,29 +110,32 @@ class _Checker:
         self.config_print = config_fingerprint(config) if cache_dir else ""
         self.checked = 0
 
-    def run(self, tasks: list[Task], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
-        """``("ok", findings)`` or ``("unreadable", reason)`` per task, in order."""
+    def key(self, task: Task) -> Optional[str]:
+        """The cache key of a deck (None without a cache, or when the deck
+        cannot be read: resolve() then says why)."""
+        if self.cache is None:
+            return None
+        digest = self.cache.digest(task.path)
+        if digest is None:
+            return None
+        return entry_key(task.path, task.root, digest, self.config_print, self.probe)
+
+    def lookup(self, key: Optional[str]) -> Optional[list[Finding]]:
+        return self.cache.get(key) if self.cache is not None and key is not None else None
+
+    def run(self, jobs: list[tuple[Task, Optional[str]]], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
+        """Check each (task, cache key) and store the findings under the key:
+        ``("ok", findings)`` or ``("unreadable", reason)`` per task, in order."""
         loader = loader or Loader()
         out: list[tuple[str, object]] = []
-        for task in tasks:
-            key = None
-            if self.cache is not None:
-                digest = self.cache.digest(task.path)
-                if digest is None:  # unreadable: let resolve() say why
-                    key = None
-                else:
-                    key = entry_key(task.path, task.root, digest, self.config_print, self.probe)
-                    found = self.cache.get(key)
-                    if found is not None:
-                        out.append(("ok", found))
-                        continue
+        for task, key in jobs:
             try:
                 findings, deps = check_one(task, loader, self.config, self.probe)
             except DeckUnreadable as e:
                 out.append(("unreadable", e.reason))
                 continue
             self.checked += 1
-            if key is not None:
+            if key is not None and self.cache is not None:
                 self.cache.put(key, deps, findings)
             out.append(("ok", findings))
         return out
@@ -150,17 +155,17 @@ def _init_worker(config: Config, probe: bool, cache_dir: Optional[str]) -> None:
     _WORKER = _Checker(config, probe, cache_dir)
 
 
-def _run_chunk(tasks: list[Task]):
+def _run_chunk(jobs: list[tuple[Task, Optional[str]]]):
     """One chunk in a worker: its results and the worker's counters since
     the previous chunk (so the parent can add them up)."""
     assert _WORKER is not None
     before = _WORKER.counters()
-    results = _WORKER.run(tasks)
+    results = _WORKER.run(jobs)
     after = _WORKER.counters()
     return results, tuple(a - b for a, b in zip(after, before))
 
 
-def chunks(tasks: list[Task], jobs: int) -> list[list[Task]]:
+def chunks(tasks: list, jobs: int) -> list[list]:
     """About eight chunks a worker (so a slow chunk does not leave the
     others idle), at most ``MAX_CHUNK`` decks each."""
     size = max(1, min(MAX_CHUNK, math.ceil(len(tasks) / (jobs * 8))))
@@ -177,26 +182,40 @@ def default_jobs() -> int:
 def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: int = 1,
                 cache_dir: Optional[str] = None, loader: Optional[Loader] = None) -> tuple[list[Finding], CheckStats]:
     """Findings of every task, concatenated in task order (raises
-    DeckUnreadable for the first unreadable deck in that order)."""
+    DeckUnreadable for the first unreadable deck in that order).
+
+    Cache look-ups happen here, in this process (hashing a file and reading
+    an entry is cheaper than sending the work to a worker); only the decks
+    that missed are checked, by workers when there are enough of them."""
     stats = CheckStats(decks=len(tasks))
     if jobs < 1:
         jobs = default_jobs()
-    in_process = jobs == 1 or len(tasks) < IN_PROCESS_BELOW or probe
-    if in_process:
-        checker = _Checker(config, probe, cache_dir)
-        results = checker.run(tasks, loader)
-        counters = [checker.counters()]
+    local = _Checker(config, probe, cache_dir)
+    results: list[Optional[tuple[str, object]]] = [None] * len(tasks)
+    todo: list[tuple[int, Task, Optional[str]]] = []
+    for i, task in enumerate(tasks):
+        key = local.key(task)
+        found = local.lookup(key)
+        if found is not None:
+            results[i] = ("ok", found)
+        else:
+            todo.append((i, task, key))
+    counters = []
+    if jobs == 1 or len(todo) < IN_PROCESS_BELOW or probe:
+        for (i, _, _), r in zip(todo, local.run([(t, k) for _, t, k in todo], loader)):
+            results[i] = r
     else:
-        parts = chunks(tasks, jobs)
-        workers = min(jobs, len(parts))
-        stats.workers = workers
-        results = []
-        counters = []
-        with ProcessPoolExecutor(max_workers=workers, initializer=_init_worker,
+        parts = chunks([(t, k) for _, t, k in todo], jobs)
+        stats.workers = min(jobs, len(parts))
+        done: list[tuple[str, object]] = []
+        with ProcessPoolExecutor(max_workers=stats.workers, initializer=_init_worker,
                                  initargs=(config, probe, cache_dir)) as pool:
             for part_results, part_counters in pool.map(_run_chunk, parts):
-                results.extend(part_results)
+                done.extend(part_results)
                 counters.append(part_counters)
+        for (i, _, _), r in zip(todo, done):
+            results[i] = r
+    counters.append(local.counters())
     for checked, hits, misses, write_errors in counters:
         stats.checked += checked
         stats.cache_hits += hits
@@ -206,7 +225,7 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
         stats.notes.append(f"note: the findings cache in {cache_dir} could not be written "
                            f"({stats.cache_write_errors} entries); checking went on without it")
     findings: list[Finding] = []
-    for task, (status, value) in zip(tasks, results):
+    for task, (status, value) in zip(tasks, results):  # type: ignore[misc]
         if status == "unreadable":
             raise DeckUnreadable(task.path, str(value))
         findings.extend(value)  # type: ignore[arg-type]

@@ -21,6 +21,7 @@ from deckward.grammar.findings import Finding, Severity
 from .review_batch import SEVERITIES, DeckEntry, Review, batch_sentence, context_lines, evidence_rows, fix_diff, rule_info
 
 LABELS = {Severity.ERROR: "Error", Severity.WARNING: "Warning", Severity.INFO: "Info"}
+COLUMN = {Severity.ERROR: "Errors", Severity.WARNING: "Warnings", Severity.INFO: "Info"}
 
 
 def e(text: object) -> str:
@@ -48,8 +49,14 @@ def badge(sev: Severity) -> str:
     return f'<span class="sev sev-{sev.value}">{LABELS[sev]}</span>'
 
 
-def count_cell(n: int) -> str:
-    return f'<td class="num{" zero" if n == 0 else ""}">{n}</td>'
+def count_cell(n: int, label: str = "") -> str:
+    data = f' data-label="{e(label)}"' if label else ""
+    return f'<td class="num{" zero" if n == 0 else ""}"{data}>{n}</td>'
+
+
+def path_text(path: str) -> str:
+    """A path that may break after its separators (not inside a name)."""
+    return "/<wbr/>".join(e(part) for part in path.split("/"))
 
 
 def plural(n: int, word: str) -> str:
@@ -62,15 +69,14 @@ def summary_table(review: Review) -> str:
     rows = []
     for d in review.decks:
         c = d.counts()
-        rows.append(f'<tr><th scope="row"><a class="path" href="#{d.anchor}">{e(d.path)}</a></th>'
-                    + "".join(count_cell(c[s]) for s in SEVERITIES) + count_cell(len(d.suppressed)) + "</tr>")
+        rows.append(f'<tr><th scope="row"><a class="path" href="#{d.anchor}">{path_text(d.path)}</a></th>'
+                    + "".join(count_cell(c[s], COLUMN[s]) for s in SEVERITIES)
+                    + count_cell(len(d.suppressed), "Suppressed") + "</tr>")
     t = review.totals()
     rows.append('<tr class="total"><th scope="row">All decks</th>'
-                + "".join(count_cell(t[s]) for s in SEVERITIES)
-                + count_cell(sum(len(d.suppressed) for d in review.decks)) + "</tr>")
-    head = ('<tr><th scope="col">Deck</th>' + "".join(f'<th scope="col" class="num">{LABELS[s]}s</th>'
-                                                    if s is not Severity.INFO else '<th scope="col" class="num">Info</th>'
-                                                    for s in SEVERITIES)
+                + "".join(count_cell(t[s], COLUMN[s]) for s in SEVERITIES)
+                + count_cell(sum(len(d.suppressed) for d in review.decks), "Suppressed") + "</tr>")
+    head = ('<tr><th scope="col">Deck</th>' + "".join(f'<th scope="col" class="num">{COLUMN[s]}</th>' for s in SEVERITIES)
             + '<th scope="col" class="num">Suppressed</th></tr>')
     return ('<section id="summary" aria-labelledby="h-summary">\n<h2 id="h-summary">Summary of the decks</h2>\n'
             '<div class="table-wrap"><table class="summary">\n<caption>Findings by severity, one row a deck</caption>\n'
@@ -89,7 +95,7 @@ def batch_section(review: Review) -> str:
     by_path = {d.path: d for d in review.decks}
     for s in review.rules:
         share = round(100 * len(s.decks) / total) if total else 0
-        links = ", ".join(f'<a class="path" href="#{by_path[p].anchor}">{e(p)}</a>' for p in s.decks if p in by_path)
+        links = ", ".join(f'<a class="path" href="#{by_path[p].anchor}">{path_text(p)}</a>' for p in s.decks if p in by_path)
         out.append(
             f'<li class="rule-summary" data-rule="{e(s.info.id)}" data-decks="{len(s.decks)}" data-findings="{s.findings}">'
             f'<div class="batch-line"><span class="batch-count">{len(s.decks)} of {plural(total, "deck")}</span>'
@@ -179,7 +185,7 @@ def finding_article(deck: DeckEntry, f: Finding, n: int, texts: dict, probed: bo
 def deck_section(deck: DeckEntry, texts: dict, probed: bool, index: int) -> str:
     c = deck.counts()
     out = [f'<section class="deck" id="{deck.anchor}" aria-labelledby="{deck.anchor}-h">',
-           f'<h2 id="{deck.anchor}-h"><span class="kicker">Deck</span> <span class="path">{e(deck.path)}</span></h2>']
+           f'<h2 id="{deck.anchor}-h"><span class="kicker">Deck</span> <span class="path">{path_text(deck.path)}</span></h2>']
     if deck.text is None:
         out.append('<p class="small">The file could not be read again for this report.</p>')
     if not deck.findings:
@@ -212,12 +218,14 @@ def probe_figure(deck: DeckEntry, index: int) -> str:
     if not rows:
         return ('<p class="small">No probe numbers to plot for this deck (no probe compared its basis with the '
                 "augmented counterpart, or the deck was not probed because it has errors).</p>")
-    plot = plot_rows(rows, "Probe values (Hartree-Fock), deck's basis and augmented counterpart", f"deck{index}")
+    plot = plot_rows(rows, "", f"deck{index}")
     if plot is None:
         return ""
     desc_id = f"{deck.anchor}-plot-desc"
     svg = plot.svg.replace("<svg", f'<svg role="img" aria-labelledby="{desc_id}"', 1)
-    return (f'<figure class="plot">{svg}<figcaption id="{desc_id}">{e(plot.alt)}</figcaption></figure>')
+    return (f'<figure class="plot"><p class="figure-title">Probe values at Hartree-Fock (eV): the deck\'s basis '
+            f"against its augmented counterpart</p>{svg}"
+            f'<figcaption id="{desc_id}">{e(plot.alt)}</figcaption></figure>')
 
 
 def render_review(review: Review) -> str:
@@ -227,7 +235,7 @@ def render_review(review: Review) -> str:
             f"{plural(t[Severity.ERROR], 'error')}, {plural(t[Severity.WARNING], 'warning')}, "
             f"{t[Severity.INFO]} info; {plural(review.clean_decks, 'deck')} without findings"
             + ("; probes run" if review.probed else "") + ".")
-    toc = "".join(f'<li><a class="path" href="#{d.anchor}">{e(d.path)}</a></li>' for d in review.decks)
+    toc = "".join(f'<li><a class="path" href="#{d.anchor}">{path_text(d.path)}</a></li>' for d in review.decks)
     body = [
         '<a class="skip" href="#decks">Skip to the decks</a>',
         "<main>",

@@ -47,33 +47,45 @@ class Plot:
 
 def rows_from(findings: list[Finding], name_of=lambda f: "") -> list[Row]:
     """Plot rows from the evidence of probe findings (``name_of(finding)``
-    gives the derived quantity's name for the label)."""
-    rows: list[Row] = []
+    gives the derived quantity's name for the label).  The same number
+    reported by two probes, or for two derived quantities of the same
+    states, is one row naming both."""
+    found: dict[tuple, list[str]] = {}
+
+    def add(name: str, kind: str, deck: float, aug: Optional[float], basis: str, aug_basis: str = "") -> None:
+        key = (kind, round(deck, 4), None if aug is None else round(aug, 4), basis, aug_basis)
+        names = found.setdefault(key, [])
+        if name and name not in names:
+            names.append(name)
+
     for f in findings:
         ev = dict(f.evidence)
         name = name_of(f) or ""
-        prefix = f"{name}: " if name else ""
         try:
+            basis = str(ev.get("basis", ""))
             if f.rule == "probe-basis-sensitivity" and "delta_scf_augmented_ev" in ev:
                 q = _NAMES.get(ev.get("quantity", ""), "value")
-                rows.append(Row(f"{prefix}{q}, delta-SCF", float(ev["delta_scf_ev"]),
-                                float(ev["delta_scf_augmented_ev"]), str(ev.get("basis", "")),
-                                str(ev.get("augmented_basis", ""))))
+                aug_basis = str(ev.get("augmented_basis", ""))
+                add(name, f"{q}, delta-SCF", float(ev["delta_scf_ev"]), float(ev["delta_scf_augmented_ev"]),
+                    basis, aug_basis)
                 if "orbital_estimate_ev" in ev and "orbital_estimate_augmented_ev" in ev:
-                    rows.append(Row(f"{prefix}{q}, orbital estimate", float(ev["orbital_estimate_ev"]),
-                                    float(ev["orbital_estimate_augmented_ev"]), str(ev.get("basis", "")),
-                                    str(ev.get("augmented_basis", ""))))
+                    add(name, f"{q}, orbital estimate", float(ev["orbital_estimate_ev"]),
+                        float(ev["orbital_estimate_augmented_ev"]), basis, aug_basis)
             elif f.rule == "probe-koopmans-relaxation" and "orbital_ie_ev" in ev:
-                basis = str(ev.get("basis", ""))
-                rows.append(Row(f"{prefix}IE, -e(HOMO)", float(ev["orbital_ie_ev"]), None, basis))
-                rows.append(Row(f"{prefix}IE, delta-SCF", float(ev["delta_scf_ie_ev"]), None, basis))
+                add(name, "IE, -e(HOMO)", float(ev["orbital_ie_ev"]), None, basis)
+                add(name, "IE, delta-SCF", float(ev["delta_scf_ie_ev"]), None, basis)
             elif f.rule == "probe-unbound-anion" and "delta_scf_ev" in ev:
-                basis = str(ev.get("basis", ""))
-                rows.append(Row(f"{prefix}EA, delta-SCF", float(ev["delta_scf_ev"]), None, basis))
+                if not any(k[0] == "EA, delta-SCF" and k[1] == round(float(ev["delta_scf_ev"]), 4) and k[3] == basis
+                           for k in found):
+                    add(name, "EA, delta-SCF", float(ev["delta_scf_ev"]), None, basis)
                 if "anion_homo_ev" in ev:
-                    rows.append(Row(f"{prefix}anion e(HOMO)", float(ev["anion_homo_ev"]), None, basis))
+                    add(name, "anion e(HOMO)", float(ev["anion_homo_ev"]), None, basis)
         except (KeyError, TypeError, ValueError):
             continue  # evidence of another shape: shown in the table, not plotted
+    rows = []
+    for (kind, deck, aug, basis, aug_basis), names in found.items():
+        label = f"{', '.join(names)}: {kind}" if names else kind
+        rows.append(Row(label, deck, aug, basis, aug_basis))
     return rows
 
 
@@ -103,18 +115,18 @@ def plot_rows(rows: list[Row], title: str, uid: str) -> Optional[Plot]:
         fig = Figure(figsize=(6.0, 0.55 * len(rows) + 1.1))
         ax = fig.add_subplot()
         ys = list(range(len(rows)))[::-1]
-        seen_deck = seen_aug = False
         for y, r in zip(ys, rows):
             if r.augmented_value is not None:
                 ax.annotate("", xy=(r.augmented_value, y), xytext=(r.deck_value, y),
-                            arrowprops={"arrowstyle": "->", "color": "#7a8594", "lw": 1.2})
-                ax.plot([r.augmented_value], [y], marker="D", markersize=7, linestyle="none",
-                        markerfacecolor="white", markeredgecolor=AUGMENTED_COLOUR, markeredgewidth=1.8,
-                        label=None if seen_aug else "augmented counterpart")
-                seen_aug = True
-            ax.plot([r.deck_value], [y], marker="o", markersize=7, linestyle="none", color=DECK_COLOUR,
-                    label=None if seen_deck else "deck's basis")
-            seen_deck = True
+                            arrowprops={"arrowstyle": "->", "color": "#7a8594", "lw": 1.2,
+                                        "shrinkA": 5, "shrinkB": 6})
+        ax.plot([r.deck_value for r in rows], ys, marker="o", markersize=7, linestyle="none", color=DECK_COLOUR,
+                label="deck's basis")
+        aug = [(r.augmented_value, y) for y, r in zip(ys, rows) if r.augmented_value is not None]
+        if aug:
+            ax.plot([a for a, _ in aug], [y for _, y in aug], marker="D", markersize=7, linestyle="none",
+                    markerfacecolor="white", markeredgecolor=AUGMENTED_COLOUR, markeredgewidth=1.8,
+                    label="augmented counterpart")
         values = [v for r in rows for v in (r.deck_value, r.augmented_value) if v is not None]
         lo, hi = min(values + [0.0]), max(values + [0.0])
         pad = max(0.25, 0.12 * (hi - lo))
@@ -123,13 +135,14 @@ def plot_rows(rows: list[Row], title: str, uid: str) -> Optional[Plot]:
         ax.axvline(0.0, color="#b8bec7", lw=0.8, zorder=0)
         ax.set_yticks(ys, [r.label for r in rows])
         ax.set_xlabel("eV")
-        ax.set_title(title, fontsize=9, loc="left")
+        if title:
+            ax.set_title(title, fontsize=9, loc="left")
         for side in ("top", "right"):
             ax.spines[side].set_visible(False)
         ax.grid(axis="x", color="#e3e6ea", lw=0.6)
         ax.set_axisbelow(True)
-        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.32 if len(rows) < 3 else -0.18), ncol=2,
-                  frameon=False, fontsize=8)
+        ax.legend(loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=2, frameon=False, fontsize=8,
+                  borderaxespad=0.2, handletextpad=0.3)
         fig.tight_layout()
         buf = io.StringIO()
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})

@@ -105,22 +105,23 @@ def test_overlap_conditioning_with_a_close_ghost_atom(tmp_path):
     import numpy as np
     from pyscf import gto
 
-    deck = ("geometry he2 {\n  He 0 0 0\n  He 0 0 0.05 ghost\n}\ngeometry he {\n  He 0 0 0\n}\n"
+    deck = ("geometry he2 {\n  He 0 0 0\n  He 0 0 0.01 ghost\n}\ngeometry he {\n  He 0 0 0\n}\n"
             "level lv { method = hf basis = aug-cc-pvdz }\n"
             "state close { geometry = he2 level = lv }\nstate alone { geometry = he level = lv }\n")
     found, ws = _probe(tmp_path, deck, select={"probe-overlap-conditioning"})
     assert [ws.root.deck.text[f.span.start:f.span.end] for f in found] == ["close"]
-    mol = gto.M(atom="He 0 0 0; ghost-He 0 0 0.05", basis={"He": "aug-cc-pvdz", "GHOST-He": "aug-cc-pvdz"}, verbose=0)
+    mol = gto.M(atom="He 0 0 0; ghost-He 0 0 0.01", basis={"He": "aug-cc-pvdz", "GHOST-He": "aug-cc-pvdz"}, verbose=0)
     smallest = float(np.linalg.eigvalsh(mol.intor("int1e_ovlp"))[0])
     assert smallest < 1e-6
     assert dict(found[0].evidence)["smallest_overlap_eigenvalue"] == pytest.approx(smallest, rel=1e-6)
 
 
 def test_too_large_molecule_is_skipped_with_the_limit(tmp_path):
+    # C in 6-31G* with spherical d: 3s2p1d = 3 + 6 + 5 = 14 functions.
     found, _ = _probe(tmp_path, C_DECK, select={"probe-unbound-anion"}, probe_cfg={"max_basis_functions": 10})
     (f,) = found
     assert f.severity.value == "info"
-    assert f.message == ("probe skipped: 15 basis functions with 6-31g* exceed probe.max_basis_functions = 10 "
+    assert f.message == ("probe skipped: 14 basis functions with 6-31g* exceed probe.max_basis_functions = 10 "
                          "(raise it in deckward.yaml to probe anyway)")
 
 

@@ -205,3 +205,10 @@ def test_nothing_is_reported_while_a_file_does_not_parse():
     text = CN + "level hf_dz { method = hf basis = aug-cc-pvdz }\nstate radical { geometry = cn level = hf_dz charge = \n"
     findings, _ = check_text(text, select={"unused-definition"})
     assert findings == []
+
+
+def test_unused_definition_is_silent_in_a_library_file():
+    from rule_harness import check_text as _check
+    library = "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\nlevel hf_dz { method = hf basis = cc-pvdz }\n"
+    findings, _ = _check(library, select={"unused-definition"})
+    assert findings == []

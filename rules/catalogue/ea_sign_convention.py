@@ -5,7 +5,7 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from ..context import Context
 from ..edits import fix
-from ..ion_states import EA, charge_text, difference_span, difference_states, ion_derives, span_text, swap_edits
+from ..ion_states import EA, charge_text, difference_span, reversed_differences, span_text, swap_edits
 
 _HEAD = (
     "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
@@ -42,13 +42,7 @@ INFO = RuleInfo(
 
 def check(ctx: Context):
     ws = ctx.workspace
-    for d in ion_derives(ws):
-        states = difference_states(ws, d)
-        if d.quantity != EA or states is None:
-            continue
-        plus, minus = states
-        if plus.charge - minus.charge != -1:
-            continue
+    for d, plus, minus in reversed_differences(ws, EA):
         yield ctx.finding(
             difference_span(ws, d.difference),
             f"the electron affinity `{d.name}` is {span_text(ws, d.difference.plus_node.span)} - "

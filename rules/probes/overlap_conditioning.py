@@ -26,7 +26,7 @@ INFO = RuleInfo(
     ),
     references=("Catalogue threshold: smallest overlap eigenvalue below about 1e-6 (common practice, no source)",),
     bad_example=(
-        "geometry he2 {\n  He 0 0 0\n  He 0 0 0.05 ghost\n}\n"
+        "geometry he2 {\n  He 0 0 0\n  He 0 0 0.01 ghost\n}\n"
         "level hf_adz { method = hf basis = aug-cc-pvdz }\n"
         "state atom { geometry = he2 level = hf_adz charge = 0 multiplicity = 1 }\n"
     ),
