@@ -74,11 +74,11 @@ GRID_BASES = [
     "pcseg-1", "aug-pcseg-1", "pcseg-2", "ma-def2-svp",
     "jun-cc-pvtz",
 ]
-QUICK_BASES = ["6-31g*", "6-31+g*", "cc-pvdz", "aug-cc-pvdz", "def2-svpd", "pcseg-1"]
-QUICK_SPECIES = ["O", "Cl", "OH", "CN"]
+QUICK_BASES = ["6-31g*", "6-31+g*", "cc-pvdz", "aug-cc-pvdz", "def2-svpd"]
+QUICK_SPECIES = ["O", "Cl", "CN"]
 SCAN_ALPHAS = [0.015, 0.02, 0.03, 0.04, 0.05, 0.065, 0.08, 0.10, 0.13, 0.17, 0.22, 0.30]
-QUICK_SCAN_ATOMS = ["O", "Cl"]
-QUICK_SCAN_ALPHAS = [0.02, 0.04, 0.065, 0.10, 0.17]
+QUICK_SCAN_ATOMS = ["O"]
+QUICK_SCAN_ALPHAS = [0.04, 0.065, 0.10, 0.17]
 TOLERANCES_EV = (0.1, 0.2)
 
 
@@ -426,6 +426,7 @@ def main(argv=None) -> int:
     ap.add_argument("--skip-scan", action="store_true", help="only the basis-set grid")
     ap.add_argument("--skip-grid", action="store_true", help="only the exponent scan")
     ap.add_argument("--markdown", default=None, help="write the Markdown tables to this file")
+    ap.add_argument("--species", nargs="+", choices=sorted(SPECIES), help="grid species (default: all)")
     args = ap.parse_args(argv)
 
     os.environ.setdefault("OMP_NUM_THREADS", "2")
@@ -450,7 +451,7 @@ def main(argv=None) -> int:
         md += ["### Exponent scan", "", table, ""]
 
     if not args.skip_grid:
-        species = QUICK_SPECIES if args.quick else list(SPECIES)
+        species = args.species or (QUICK_SPECIES if args.quick else list(SPECIES))
         bases = QUICK_BASES if args.quick else GRID_BASES
         log("== basis-set grid ==")
         rows = grid(species, bases, log)

@@ -24,7 +24,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Optional, Sequence
 
 __all__ = [
     "CRITERION_REFERENCES",
@@ -121,14 +121,42 @@ def _smallest(exponents: Sequence[float]) -> float | None:
     return min(values) if values else None
 
 
+# Sets whose smallest exponents mark an element's valence floor: a diffuse
+# layer is an exponent well below what a standard triple-zeta set needs for
+# the neutral atom.  Electropositive atoms (B, Si, alkali metals) have valence
+# exponents below the threshold already; counting against the floor keeps
+# them from looking doubly augmented in an ordinary aug set.
+_FLOOR_SETS = ("cc-pvtz", "def2-tzvp")
+_LAYER_FACTOR = 0.5  # an exponent below half the floor is an added layer (common practice, no source)
+
+
+def valence_floor(symbol: str) -> Optional[tuple[Optional[float], Optional[float]]]:
+    """Smallest s and p exponents of the element in a standard
+    non-augmented triple-zeta set (None when no such set covers it)."""
+    from . import basis_library
+
+    for name in _FLOOR_SETS:
+        data = basis_library.element_data(name, symbol)
+        if data is not None:
+            exps = data.smallest_exponents
+            return (exps[0][0] if exps and exps[0] else None,
+                    exps[1][0] if len(exps) > 1 and exps[1] else None)
+    return None
+
+
 def diffuse_layers(symbol: str, smallest_exponents: Sequence[Sequence[float]]) -> int:
-    """Number of s or p exponents below the threshold (aug = 1, d-aug = 2)."""
+    """Number of diffuse s or p layers (aug = 1, d-aug = 2): exponents below
+    both the threshold and half the element's valence floor."""
     limit = threshold(symbol)
-    counts = [
-        sum(1 for a in smallest_exponents[l] if 0 < a < limit)
-        for l in (0, 1)
-        if l < len(smallest_exponents)
-    ]
+    floor = valence_floor(symbol)
+    counts = []
+    for l in (0, 1):
+        if l >= len(smallest_exponents):
+            continue
+        cut = limit
+        if floor is not None and floor[l] is not None:
+            cut = min(limit, _LAYER_FACTOR * floor[l])
+        counts.append(sum(1 for a in smallest_exponents[l] if 0 < a < cut))
     return max(counts, default=0)
 
 

@@ -13,12 +13,11 @@ from __future__ import annotations
 import re
 from html import escape
 from importlib import resources
-from typing import Optional
 
 from deckward import __version__
 from deckward.grammar.findings import Finding, Severity
 
-from .review_batch import SEVERITIES, DeckEntry, Review, batch_sentence, context_lines, evidence_rows, fix_diff, rule_info
+from .review_batch import SEVERITIES, DeckEntry, Review, context_lines, evidence_rows, fix_diff, rule_info
 
 LABELS = {Severity.ERROR: "Error", Severity.WARNING: "Warning", Severity.INFO: "Info"}
 COLUMN = {Severity.ERROR: "Errors", Severity.WARNING: "Warnings", Severity.INFO: "Info"}

@@ -260,3 +260,14 @@ def test_references_are_the_published_diffuse_basis_papers():
     assert any("J. Comput. Chem. 4, 294 (1983)" in r for r in CRITERION_REFERENCES)
     assert any("J. Chem. Phys. 133, 134105 (2010)" in r for r in CRITERION_REFERENCES)
     assert any("J. Chem. Theory Comput. 10, 1074 (2014)" in r for r in CRITERION_REFERENCES)
+
+
+def test_electropositive_atoms_in_plain_aug_sets_count_one_layer():
+    # Si and B valence exponents already lie below the threshold; an ordinary
+    # aug set must still count as one diffuse layer, not two (exponents from
+    # the basis library index, generated from PySCF's basis files).
+    from deckward.rules import basis_library
+
+    for word, symbol in (("aug-cc-pvtz", "Si"), ("aug-cc-pvtz", "B"), ("aug-cc-pv5z", "C"), ("aug-cc-pvqz", "S")):
+        data = basis_library.element_data(word, symbol)
+        assert diffuse_layers(symbol, data.smallest_exponents) == 1, (word, symbol)

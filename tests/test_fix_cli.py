@@ -291,14 +291,18 @@ def test_fix_never_breaks_a_deck_that_uses_the_file(tmp_path):
     # checked alone, shared.deck's level looks unused; removing it (a risky
     # fix) would leave user.deck's reference undefined, so it is skipped,
     # while the method's spelling is still corrected
-    write(tmp_path / "shared.deck", "level hf_adz { method = hff basis = aug-cc-pvdz reference = unrestricted }\n")
+    # (shared.deck has a state of its own, so it is a deck, not a library file)
+    shared_rest = ("level atom_lv { method = hf basis = sto-3g }\ngeometry h { H 0 0 0 }\n"
+                   "state h_atom { geometry = h level = atom_lv charge = 0 multiplicity = 2 }\n")
+    write(tmp_path / "shared.deck", "level hf_adz { method = hff basis = aug-cc-pvdz reference = unrestricted }\n"
+          + shared_rest)
     write(tmp_path / "user.deck", 'use "shared.deck"\ngeometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n'
           "state radical { geometry = cn level = hf_adz charge = 0 multiplicity = 2 }\n")
     lines = ["rules:"] + [f"  {r.id}: off" for r in CATALOGUE if r.id not in ("unused-definition", "unknown-method")]
     (tmp_path / "deckward.yaml").write_text("\n".join(lines) + "\n", encoding="utf-8")
     status, out = cli("check", "--fix-risky", str(tmp_path))
     assert (tmp_path / "shared.deck").read_text(encoding="utf-8") == (
-        "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n")
+        "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n" + shared_rest)
     shared = tmp_path / "shared.deck"
     note, last = out.splitlines()[1:]
     assert note.startswith(f'deckward: {shared}: line 1: fix "')

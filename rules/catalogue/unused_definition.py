@@ -16,8 +16,8 @@ INFO = RuleInfo(
         "A geometry, level or basis_set that no state (or basis_set) refers to is computed never. "
         "Often it is a leftover, or a sign that a state refers to the wrong one: a deck with an "
         "unused `cc_atz` level and states on `cc_dz` may not be what the author meant to run. Only "
-        "definitions of the checked deck itself are reported, and a library file (one with no state "
-        "and no derive, meant to be brought in with `use`) is not expected to use its own "
+        "definitions of the checked deck itself are reported, and a library file (one whose workspace "
+        "has no state and no derive, meant to be brought in with `use`) is not expected to use its own "
         "definitions. Nothing is reported while a "
         "file of the workspace has a syntax error, since the statement that uses a name may be the "
         "one that did not parse."
@@ -73,7 +73,7 @@ def check(ctx: Context):
     ws = ctx.workspace
     if any(f.rule == "syntax-error" for f in ws.findings):
         return
-    if not ws.root.deck.states and not ws.root.deck.derives:
+    if not ws.states and not ws.derives:
         return  # a library file (shared geometries, levels): its definitions are for the decks that use it
     used = {id(r.target.node) for r in ws.references if r.target is not None}
     index = ws.root.index

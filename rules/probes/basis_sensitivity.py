@@ -2,7 +2,8 @@
 
 Computes the delta-SCF EA (or IE) and its orbital-energy estimate at
 Hartree-Fock with the deck's basis and with the augmented counterpart of
-every library set in it (rules/basis_families.py); reports when the
+every library set in it (rules/basis_families.py), making up the missing
+ion when the deck only has an orbital-energy estimate; reports when the
 delta-SCF value moves by more than ``probe.threshold_ev`` (default 0.1 eV).
 """
 from __future__ import annotations
@@ -48,7 +49,7 @@ _NAMES = {"electron_affinity": "EA", "ionization_energy": "IE"}
 
 
 def probe(ctx: ProbeContext):
-    for pair in ctx.ion_pairs(construct=False):
+    for pair in ctx.ion_pairs(construct=True):
         span = pair.derive.name.span
         low_aug, high_aug = augmented_plan(pair.low), augmented_plan(pair.high)
         if low_aug is None or high_aug is None:
@@ -70,6 +71,9 @@ def probe(ctx: ProbeContext):
                    else f"it moves by {abs(shift):.2f} eV (threshold {threshold:g} eV)")
         message = (f"delta-SCF {q} at HF: {signed(d0)} eV with {b0}, {signed(d1)} eV with {b1}: {verdict}; "
                    f"orbital estimate {orbital}: {signed(o0)} eV -> {signed(o1)} eV")
+        if pair.constructed:
+            ion = "anion" if q == "EA" else "cation"
+            message += f" (the deck has no {ion}: the probe computed one at the same geometry)"
         yield finding(INFO, span, message, {
             "quantity": pair.quantity,
             "basis": b0,

@@ -19,10 +19,11 @@ from deckward.grammar.resolve import Workspace
 
 from .. import basis_families, deck_facts, units
 from ..config import Config
-from ..runner.cache import RunCache
-from ..runner.mapping import MappingError, plan_state
-from ..runner.parallel import RunOptions, execute
-from ..runner.plan import ElementBasisPlan, StatePlan
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the runner is imported when a probe runs, not when rules are listed
+    from ..runner.cache import RunCache
+    from ..runner.plan import StatePlan
 
 DEFAULT_MAX_BASIS_FUNCTIONS = 300
 DEFAULT_TIME_LIMIT_S = 120.0
@@ -57,6 +58,7 @@ def augmented_plan(plan: StatePlan) -> Optional[StatePlan]:
     """The plan with every library set replaced by its augmented
     counterpart (added shells kept); None when no set has one."""
     from .. import basis_library
+    from ..runner.plan import ElementBasisPlan
 
     changed = False
     basis = []
@@ -110,6 +112,8 @@ class ProbeContext:
     """Shared state of one ``run_probes`` call."""
 
     def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None) -> None:
+        from ..runner.cache import RunCache
+
         self.ws = ws
         self.config = config
         self.settings = ProbeSettings.from_config(config)
@@ -122,6 +126,8 @@ class ProbeContext:
     def plan(self, name: str) -> Optional[StatePlan]:
         """The HF plan of a deck state; None when it cannot be mapped (the
         static rules report why)."""
+        from ..runner.mapping import MappingError, plan_state
+
         if name not in self._plans:
             try:
                 self._plans[name] = hf_plan(plan_state(self.ws, name))
@@ -152,6 +158,8 @@ class ProbeContext:
 
     def hf(self, plan: StatePlan) -> dict:
         """The HF result of a plan; ProbeSkipped when too large or failed."""
+        from ..runner.parallel import RunOptions, execute
+
         key = self.cache.key(plan)
         if key not in self._results:
             reason = self.too_large(plan)
