@@ -16,7 +16,7 @@ from deckward.grammar.resolve import Workspace
 
 from .config import CONFIG_RULE, Config
 from .context import Context
-from .registry import all_rules
+from .registry import PROBE_MODULE, all_rules
 from .suppressions import apply_suppressions
 
 
@@ -29,11 +29,14 @@ def check_workspace(
     config: Optional[Config] = None,
     select: Optional[Iterable[str]] = None,
     extra: Iterable[Finding] = (),
+    probed: bool = False,
 ) -> list[Finding]:
     """All findings for one workspace (the root deck and what it uses).
 
     ``extra``: findings computed elsewhere (probes) that should go through
-    the same severity and suppression handling."""
+    the same severity and suppression handling; ``probed`` says the probes
+    ran, so that a suppression of a probe finding can be called unused only
+    then."""
     config = config or Config()
     selected = set(select) if select is not None else None
     findings: list[Finding] = list(ws.findings)
@@ -42,6 +45,8 @@ def check_workspace(
         if selected is not None and rule.id not in selected:
             continue
         if config.severity_for(rule.id, rule.info.severity) is None:
+            continue
+        if rule.module == PROBE_MODULE and not probed:
             continue
         ran.add(rule.id)
         if rule.check is None:

@@ -31,6 +31,7 @@ class Rule:
 
 
 _RULES: Optional[dict[str, Rule]] = None
+PROBE_MODULE = "deckward.rules.probes"  # rules reported by probes, which run only on request
 
 # Findings that are not rules of the catalogue but can appear in output.
 INTERNAL_RULES = (
@@ -66,7 +67,7 @@ def all_rules() -> dict[str, Rule]:
         for info in SUPPRESSION_RULES + (CONFIG_RULE,) + INTERNAL_RULES:
             rules.setdefault(info.id, Rule(info, None, "deckward.rules"))
         for info in PROBE_RULES:
-            rules.setdefault(info.id, Rule(info, None, "deckward.rules.probes"))
+            rules.setdefault(info.id, Rule(info, None, PROBE_MODULE))
         _RULES = rules
     return _RULES
 

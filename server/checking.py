@@ -120,7 +120,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
                 from deckward.rules.probes import run_probes
 
                 extra = run_probes(ws, config)
-            findings.extend(check_workspace(ws, config, extra=extra))
+            findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
         return CheckResult(files, dedupe(findings), config)
 
     from .parallel_check import DeckUnreadable, Task, check_tasks

@@ -53,7 +53,7 @@ def run(args) -> int:
                 sys.stderr.write(f"deckward: {path} has errors and is not probed (see `deckward check`)\n")
                 continue
             extra = run_probes(ws, config, cache)
-            findings.extend(check_workspace(ws, config, select=ids, extra=extra))
+            findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
     result = CheckResult(files, dedupe(findings), config)
     text = renderer(args.format)(result)
     if args.output:

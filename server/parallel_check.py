@@ -23,7 +23,6 @@ from __future__ import annotations
 
 import math
 import os
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from typing import Optional
 
@@ -97,7 +96,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[
         from deckward.rules.probes import run_probes
 
         extra = run_probes(ws, config)
-    return check_workspace(ws, config, extra=extra), used_paths(ws)
+    return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws)
 
 
 class _Checker:
@@ -208,6 +207,8 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
         parts = chunks([(t, k) for _, t, k in todo], jobs)
         stats.workers = min(jobs, len(parts))
         done: list[tuple[str, object]] = []
+        from concurrent.futures import ProcessPoolExecutor  # only when workers are needed
+
         with ProcessPoolExecutor(max_workers=stats.workers, initializer=_init_worker,
                                  initargs=(config, probe, cache_dir)) as pool:
             for part_results, part_counters in pool.map(_run_chunk, parts):

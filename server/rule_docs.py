@@ -6,6 +6,7 @@
 """
 from __future__ import annotations
 
+import os
 import sys
 
 from deckward.grammar.findings import RuleInfo
@@ -20,7 +21,9 @@ CATEGORY_TITLES = {
     "hygiene": "Hygiene",
     "probe": "Probes (computed with PySCF on request)",
 }
-DOCS_URL = "https://deckward.invalid/docs/rules.md"  # replaced by the project's published docs address
+# Where docs/rules.md is published; a group hosting its own copy sets
+# DECKWARD_DOCS_URL (the editor and SARIF links follow it).
+DOCS_URL = os.environ.get("DECKWARD_DOCS_URL", "https://deckward.invalid/docs/rules.md")
 
 
 def rule_url(rule_id: str) -> str:
