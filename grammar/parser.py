@@ -199,6 +199,11 @@ _CHUNK_CACHE: "OrderedDict[tuple[str, int], tuple]" = OrderedDict()
 _CHUNK_CACHE_SIZE = 20000
 
 
+def clear_parse_cache() -> None:
+    """Forget remembered statement parses (benchmarks measure cold parses)."""
+    _CHUNK_CACHE.clear()
+
+
 def _parse_chunk(parser, body: str, chunk_len: int):
     """(tree or None, [(start, end, message)]) for one statement's text.
 
