@@ -147,3 +147,22 @@ def test_check_probe_and_probe_command(tmp_path, monkeypatch, capsys):
     assert main(["probe", path]) == 1
     out = capsys.readouterr().out
     assert "warning: probe-basis-sensitivity: delta-SCF EA at HF:" in out
+
+
+def test_basis_sensitivity_makes_up_the_missing_anion(tmp_path):
+    # An EA read off the LUMO, with no anion in the deck: the probe computes
+    # the anion itself (quartet C-, the lowest state) and shows the
+    # delta-SCF numbers next to the orbital estimate, equal to PySCF's.
+    deck = ("geometry c { C 0 0 0 }\nlevel lv { method = hf basis = 6-31g* }\n"
+            "state neutral { geometry = c level = lv charge = 0 multiplicity = 3 }\n"
+            "derive ea = -orbital(neutral, lumo) in ev\n")
+    found, ws = _probe(tmp_path, deck, select={"probe-basis-sensitivity"})
+    (f,) = found
+    ev = lambda b: (_uhf("C", b, 0, 2).e_tot - _uhf("C", b, -1, 3).e_tot) * EV  # noqa: E731
+    d0, d1 = ev("6-31g*"), ev("6-31+g*")
+    evidence = dict(f.evidence)
+    assert evidence["delta_scf_ev"] == pytest.approx(d0, abs=1e-5)
+    assert evidence["delta_scf_augmented_ev"] == pytest.approx(d1, abs=1e-5)
+    assert f.message.endswith("(the deck has no anion: the probe computed one at the same geometry, "
+                              "multiplicity 4, the lower in energy of the two next to the neutral's)")
+    assert ws.root.deck.text[f.span.start:f.span.end] == "ea"

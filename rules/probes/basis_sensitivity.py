@@ -73,7 +73,9 @@ def probe(ctx: ProbeContext):
                    f"orbital estimate {orbital}: {signed(o0)} eV -> {signed(o1)} eV")
         if pair.constructed:
             ion = "anion" if q == "EA" else "cation"
-            message += f" (the deck has no {ion}: the probe computed one at the same geometry)"
+            made = pair.high if pair.constructed == "high" else pair.low
+            message += (f" (the deck has no {ion}: the probe computed one at the same geometry, multiplicity "
+                        f"{made.spin + 1}, the lower in energy of the two next to the neutral's)")
         yield finding(INFO, span, message, {
             "quantity": pair.quantity,
             "basis": b0,

@@ -77,16 +77,19 @@ def augmented_plan(plan: StatePlan) -> Optional[StatePlan]:
     return plan.with_changes(basis=tuple(basis), basis_label=", ".join(labels))
 
 
-def partner_plan(plan: StatePlan, extra_electrons: int) -> StatePlan:
-    """The state with ``extra_electrons`` more electrons in the lowest spin
-    state (open shells unrestricted)."""
-    from .. import elements
-
-    electrons = sum(elements.lookup(a.symbol).z for a in plan.atoms if not a.ghost) - plan.charge + extra_electrons
-    spin = electrons % 2
-    reference = "restricted" if spin == 0 else "unrestricted"
-    return plan.with_changes(charge=plan.charge - extra_electrons, spin=spin, reference=reference,
-                             name=f"{plan.name}{'+' if extra_electrons < 0 else '-'}{abs(extra_electrons)}e")
+def partner_plans(plan: StatePlan, extra_electrons: int) -> list[StatePlan]:
+    """The state with ``extra_electrons`` more electrons, in each spin state
+    one step from the plan's (2S +- 1, open shells unrestricted): which is
+    lower is not known before computing (C- is a quartet, NO2- a singlet)."""
+    out = []
+    for spin in (plan.spin - 1, plan.spin + 1):
+        if spin < 0:
+            continue
+        reference = "restricted" if spin == 0 else "unrestricted"
+        out.append(plan.with_changes(
+            charge=plan.charge - extra_electrons, spin=spin, reference=reference,
+            name=f"{plan.name}{'+' if extra_electrons < 0 else '-'}{abs(extra_electrons)}e(2S={spin})"))
+    return out
 
 
 @dataclass(frozen=True)
@@ -200,11 +203,26 @@ class ProbeContext:
             base = self.plan(node.state.value)
             if base is None:
                 continue
+            partner = self.lowest(partner_plans(base, -1 if q == "ionization_energy" else +1))
+            if partner is None:
+                continue
             if q == "ionization_energy":
-                pairs.append(IonPair(d, q, partner_plan(base, -1), base, "low"))
+                pairs.append(IonPair(d, q, partner, base, "low"))
             else:
-                pairs.append(IonPair(d, q, base, partner_plan(base, +1), "high"))
+                pairs.append(IonPair(d, q, base, partner, "high"))
         return pairs
+
+    def lowest(self, plans: list[StatePlan]) -> Optional[StatePlan]:
+        """The plan with the lowest HF energy (None when none could be computed)."""
+        best = None
+        for plan in plans:
+            try:
+                energy = self.hf(plan)["energy"]
+            except ProbeSkipped:
+                continue
+            if best is None or energy < best[0]:
+                best = (energy, plan)
+        return best[1] if best else None
 
     def delta_and_orbital_ev(self, pair: IonPair, low: StatePlan, high: StatePlan) -> tuple[float, float]:
         """(delta-SCF value, orbital-energy estimate) in eV: for an EA
