@@ -12,7 +12,8 @@ The layout:
 
 - one statement after another, at most one blank line between them;
 - a block written on one line without atoms or shells stays on one line:
-  ``state anion { geometry = no2  level = cc_tz  charge = -1 }``;
+  ``state anion { geometry = no2  level = cc_tz  charge = -1 }``, and
+  neighbouring one-line blocks of the same kind are aligned in columns;
 - any other block has one key, atom or ``add`` shell per line, indented by
   two spaces, with the ``=`` of its settings aligned;
 - atoms in aligned columns, coordinates aligned on the decimal point;
@@ -50,6 +51,9 @@ class _Line:
     trailing: Optional[str] = None
     before: list = field(default_factory=list)  # own-line comments: (text, blank_before)
     blank_before: bool = False
+    # For a block kept on one line: its head ("state anion"), and its
+    # settings as (key, "key = value"), so that neighbours can be aligned.
+    row: Optional[tuple[str, list]] = None
 
 
 def format_text(text: str) -> Optional[str]:
@@ -67,6 +71,7 @@ def format_text(text: str) -> Optional[str]:
     tail: list[tuple[str, bool]] = []  # comments after the last statement
     _place_comments(text, lines, out.comments, tail)
     _mark_blank_lines(text, lines)
+    _align_rows(lines)
     rendered: list[str] = []
     after_open = False  # the previous line opened a block: no blank line here
     for ln in lines:
@@ -89,6 +94,47 @@ def format_text(text: str) -> Optional[str]:
     if not rendered:
         return bom
     return bom + newline.join(rendered) + newline
+
+
+# ------------------------------------------------------------ aligned blocks
+
+
+def _align_rows(lines: list[_Line]) -> None:
+    """Align neighbouring one-line blocks of the same kind into columns:
+
+        state neutral { geometry = no2  level = cc_tz  charge = 0   multiplicity = 2 }
+        state anion   { geometry = no2  level = cc_tz  charge = -1  multiplicity = 1 }
+
+    Neighbours are consecutive lines with no blank line or comment between
+    them; columns are aligned while the rows have the same key in the same
+    place, and the rest of each row follows as written."""
+    i = 0
+    while i < len(lines):
+        if lines[i].row is None or lines[i].trailing is not None:
+            i += 1
+            continue
+        kind = lines[i].row[0].split()[0]
+        j = i + 1
+        while (j < len(lines) and lines[j].row is not None and lines[j].row[0].split()[0] == kind
+               and not lines[j].blank_before and not lines[j].before and lines[j].trailing is None):
+            j += 1
+        if j - i > 1:
+            _align_group(lines[i:j])
+        i = j
+
+
+def _align_group(group: list[_Line]) -> None:
+    rows = [ln.row for ln in group]
+    head_width = max(len(head) for head, _ in rows)
+    shared = 0
+    shortest = min(len(cells) for _, cells in rows)
+    while shared < shortest and len({cells[shared][0] for _, cells in rows}) == 1:
+        shared += 1
+    widths = [max(len(cells[k][1]) for _, cells in rows) for k in range(shared)]
+    for ln, (head, cells) in zip(group, rows):
+        parts = [cells[k][1].ljust(widths[k]) if k < len(cells) - 1 else cells[k][1] for k in range(shared)]
+        parts += [c for _, c in cells[shared:]]
+        ln.text = f"{head.ljust(head_width)} {{ {INLINE_SEPARATOR.join(parts)} }}"
 
 
 # --------------------------------------------------------------------- comments
@@ -176,8 +222,12 @@ class _Statement:
         if not items:
             return [self.line(0, head + " {}", kids[0], rb)]
         if "\n" not in inline_src and not has_rows:
-            body = INLINE_SEPARATOR.join(self.setting(i, 0) for i in items)
-            return [self.line(0, f"{head} {{ {body} }}", kids[0], rb)]
+            cells = [(str(i.children[0]).lower(), self.setting(i, 0)) for i in items if i.data == "setting"]
+            body = INLINE_SEPARATOR.join(c for _, c in cells)
+            line = self.line(0, f"{head} {{ {body} }}", kids[0], rb)
+            if len(cells) == len(items):
+                line.row = (head, cells)
+            return [line]
         out = [self.line(0, head + " {", kids[0], lb)]
         key_width = max((len(str(i.children[0])) for i in items if i.data == "setting"), default=0)
         atom_rows = self.atom_rows([i for i in items if i.data == "atom"])

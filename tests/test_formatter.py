@@ -147,3 +147,29 @@ def test_command_line_check_and_write(tmp_path):
     assert refused.returncode == 1
     assert refused.stderr.startswith(f"{broken}:1:")
     assert broken.read_text(encoding="utf-8") == "level l { method = }\n"
+
+
+def test_neighbouring_one_line_blocks_are_aligned_in_columns():
+    text = ("state neutral { geometry = no2 level = cc_tz charge = 0 multiplicity = 2 }\n"
+            "state anion { geometry = no2 level = cc_tz charge = -1 multiplicity = 1 reference = restricted }\n"
+            "\n"
+            "state lone { level = cc_tz geometry = no2 }\n")
+    assert format_text(text) == (
+        "state neutral { geometry = no2  level = cc_tz  charge = 0   multiplicity = 2 }\n"
+        "state anion   { geometry = no2  level = cc_tz  charge = -1  multiplicity = 1  reference = restricted }\n"
+        "\n"
+        "state lone { level = cc_tz  geometry = no2 }\n")
+    assert format_text(format_text(text)) == format_text(text)
+
+
+def test_bundled_examples_are_in_the_canonical_layout():
+    import os
+
+    folder = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "examples")
+    for dirpath, _, files in os.walk(folder):
+        for name in files:
+            if not name.endswith(".deck") or name == "no2_typos.deck":  # that one has syntax errors on purpose
+                continue
+            with open(os.path.join(dirpath, name), encoding="utf-8") as f:
+                text = f.read()
+            assert format_text(text) == text, name
