@@ -2,7 +2,8 @@
 
 For every ionization-energy derive, computes at Hartree-Fock with the
 deck's basis -e(HOMO) of the neutral (Koopmans' theorem) and the delta-SCF
-IE (the cation is made up, lowest spin state, when the deck has none), and
+IE (the cation is made up when the deck has none: of the two spin states next to
+the neutral's, the one lower in energy), and
 reports both as information: the difference is the orbital relaxation that
 Koopmans' theorem leaves out.
 """
@@ -47,7 +48,8 @@ def probe(ctx: ProbeContext):
             yield skipped(INFO, span, str(e))
             continue
         relaxation = orbital - delta
-        made_up = " (cation made up by the probe: lowest spin, unrestricted)" if pair.constructed else ""
+        made_up = (f" (cation made up by the probe: multiplicity {pair.low.spin + 1}, the lower in energy of the "
+                   "two next to the neutral's)" if pair.constructed else "")
         yield finding(INFO, span, (
             f"IE at HF/{pair.high.basis_label}: orbital energy -e(HOMO) {orbital:.2f} eV, delta-SCF "
             f"{delta:.2f} eV{made_up}: relaxation {signed(-relaxation)} eV"), {
