@@ -17,6 +17,8 @@ from lsprotocol import types as t
 from deckward.grammar.findings import Finding, Fix
 
 from .diagnostics import to_diagnostic
+from .probes import ACTION_KIND as PROBE_ACTION_KIND
+from .probes import probe_action
 
 if TYPE_CHECKING:
     from .server import DeckServer
@@ -96,7 +98,8 @@ def _wants(only, kind: str) -> bool:
 def register(server: "DeckServer") -> None:
     @server.feature(
         t.TEXT_DOCUMENT_CODE_ACTION,
-        t.CodeActionOptions(code_action_kinds=[t.CodeActionKind.QuickFix, t.CodeActionKind.SourceFixAll, FIX_ALL_KIND]),
+        t.CodeActionOptions(code_action_kinds=[t.CodeActionKind.QuickFix, t.CodeActionKind.SourceFixAll, FIX_ALL_KIND,
+                                               PROBE_ACTION_KIND]),
     )
     async def code_action(ls: "DeckServer", params: t.CodeActionParams):
         analysis = await ls.analysis(params.text_document.uri)
@@ -118,4 +121,7 @@ def register(server: "DeckServer") -> None:
                     kind=FIX_ALL_KIND,
                     edit=t.WorkspaceEdit(changes={analysis.uri: [minimal_edit(analysis, outcome.text)]}),
                 ))
+        if only and _wants(only, PROBE_ACTION_KIND) or not only and params.context and not params.context.diagnostics:
+            # offered when asked for source actions, or in the general menu away from a finding
+            actions.append(probe_action(analysis.uri))
         return actions

@@ -60,8 +60,13 @@ def to_diagnostic(finding: Finding, analysis: "Analysis") -> t.Diagnostic:
     )
 
 
-def diagnostics_of(analysis: "Analysis") -> list[t.Diagnostic]:
-    return [to_diagnostic(f, analysis) for f in analysis.own_findings]
+def diagnostics_of(analysis: "Analysis", server: "DeckServer") -> list[t.Diagnostic]:
+    """The document's own findings, plus probe findings computed for this
+    exact text by the probe command."""
+    from .probes import probe_findings_for
+
+    found = analysis.own_findings + probe_findings_for(server, analysis)
+    return [to_diagnostic(f, analysis) for f in found]
 
 
 def result_id(diagnostics: list[t.Diagnostic], server: "DeckServer") -> str:
@@ -92,7 +97,7 @@ class Publisher:
                 return
             if self.server.push and self.server.is_current(uri, analysis):
                 self.server.text_document_publish_diagnostics(t.PublishDiagnosticsParams(
-                    uri=uri, version=analysis.version, diagnostics=diagnostics_of(analysis)))
+                    uri=uri, version=analysis.version, diagnostics=diagnostics_of(analysis, self.server)))
             if dependents:
                 for other in self.server.store.dependents(analysis.path):
                     if other != uri and self.server.is_open(other):
@@ -160,7 +165,7 @@ def register(server: "DeckServer") -> None:
     )
     async def pull(ls: "DeckServer", params: t.DocumentDiagnosticParams):
         analysis = await ls.analysis(params.text_document.uri)
-        items = diagnostics_of(analysis) if analysis is not None else []
+        items = diagnostics_of(analysis, ls) if analysis is not None else []
         rid = result_id(items, ls)
         if params.previous_result_id == rid:
             return t.UnchangedDocumentDiagnosticReport(result_id=rid)

@@ -38,6 +38,8 @@ class DeckServer(LanguageServer):
         self.push = True  # publish diagnostics (clients without pull support)
         self.pull_refresh = False
         self.generation = 0  # bumped whenever anything a check reads may have changed
+        # uri -> (text, probe findings): results of the probe command for that exact text
+        self.probe_results: dict[str, tuple[str, list]] = {}
 
     # -- document state ---------------------------------------------------
     def is_open(self, uri: str) -> bool:
@@ -141,11 +143,11 @@ def _register_lifecycle(server: DeckServer) -> None:
 
 def build_server() -> DeckServer:
     """A server with every feature registered."""
-    from . import actions, completion, diagnostics, formatting, hover, navigation
+    from . import actions, completion, diagnostics, formatting, hover, navigation, probes
 
     server = DeckServer()
     _register_lifecycle(server)
-    for module in (diagnostics, actions, hover, completion, navigation, formatting):
+    for module in (diagnostics, actions, hover, completion, navigation, formatting, probes):
         module.register(server)
     return server
 
