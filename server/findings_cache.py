@@ -20,6 +20,7 @@ from __future__ import annotations
 import hashlib
 import json
 import os
+import re
 import tempfile
 from typing import Any, Iterable, Optional
 
@@ -151,6 +152,8 @@ def entry_key(path: str, root_dir: str, root_digest: str, config_print: str, pro
 
 # -- the cache -------------------------------------------------------------------------
 
+_HEX = re.compile(r"[0-9a-f]+")
+
 class FindingsCache:
     """Entries in ``folder``: ``<key[:2]>/<key>.json`` holding
     ``{"deps": [[path, sha256-or-null], ...], "findings": [...]}``."""
@@ -216,3 +219,28 @@ class FindingsCache:
 
     def forget_digests(self) -> None:
         self._digests.clear()
+
+    def clear(self) -> int:
+        """Delete every entry (and nothing else: the folder may be one a
+        user named); returns how many entries were removed."""
+        removed = 0
+        try:
+            buckets = os.listdir(self.folder)
+        except OSError:
+            return 0
+        for bucket in buckets:
+            sub = os.path.join(self.folder, bucket)
+            if len(bucket) != 2 or not _HEX.fullmatch(bucket) or not os.path.isdir(sub):
+                continue
+            for name in os.listdir(sub):
+                if name.endswith(".json") and _HEX.fullmatch(name[:-5]) and name.startswith(bucket):
+                    try:
+                        os.unlink(os.path.join(sub, name))
+                        removed += 1
+                    except OSError:
+                        pass
+            try:
+                os.rmdir(sub)
+            except OSError:
+                pass  # something else lives there: leave it
+        return removed

@@ -242,7 +242,8 @@ def add_scale_arguments(p) -> None:
                        help="worker processes (default: one per core; 1: no workers)")
     group.add_argument("--cache-dir", metavar="DIR",
                        help="findings cache folder (default: $DECKWARD_CACHE_DIR/findings or ~/.cache/deckward/findings)")
-    group.add_argument("--no-cache", action="store_true", help="neither read nor write the findings cache")
+    group.add_argument("--no-cache", action="store_true",
+                       help="clear the findings cache and check everything afresh (nothing is read or written)")
 
 
 def _jobs_value(text: str) -> int:
@@ -262,5 +263,12 @@ def scale_options(args) -> dict:
     from .findings_cache import default_cache_dir
 
     jobs = getattr(args, "jobs", 1)
-    cache_dir = None if getattr(args, "no_cache", True) else (getattr(args, "cache_dir", None) or default_cache_dir())
+    folder = getattr(args, "cache_dir", None) or default_cache_dir()
+    if getattr(args, "no_cache", False):
+        from .findings_cache import FindingsCache
+
+        FindingsCache(folder).clear()
+        cache_dir = None
+    else:
+        cache_dir = folder
     return {"jobs": jobs if jobs else default_jobs(), "cache_dir": cache_dir}

@@ -179,3 +179,19 @@ def test_concurrent_writers_never_leave_half_an_entry(tmp_path):
     with ProcessPoolExecutor(2) as pool:
         assert list(pool.map(_hammer, [(folder, key, 200)] * 2)) == [0, 0]
     assert os.listdir(os.path.join(folder, "ab")) == [key + ".json"]
+
+
+def test_no_cache_clears_the_entries_and_nothing_else(tmp_path):
+    from deckward.server.cli import main
+
+    deck = tmp_path / "d.deck"
+    deck.write_text("geometry g {\n  H 0 0 0\n}\n")
+    cache = tmp_path / "cache"
+    cache.mkdir()
+    (cache / "notes.txt").write_text("a user's file in the folder they named\n")
+    assert main(["check", str(deck), "--cache-dir", str(cache), "--fail-on", "never"]) == 0
+    entries = [p for p in cache.rglob("*.json")]
+    assert len(entries) == 1
+    assert main(["check", str(deck), "--cache-dir", str(cache), "--no-cache", "--fail-on", "never"]) == 0
+    assert [p for p in cache.rglob("*.json")] == []
+    assert (cache / "notes.txt").read_text() == "a user's file in the folder they named\n"
