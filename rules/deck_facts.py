@@ -21,15 +21,7 @@ def nuclear_charge(geometry: m.Geometry) -> Optional[int]:
     """Sum of Z over real (non-ghost) atoms; None if an element is unknown."""
     from . import elements
 
-    total = 0
-    for atom in geometry.atoms:
-        if atom.ghost:
-            continue
-        el = elements.lookup(atom.symbol.value)
-        if el is None:
-            return None
-        total += el.z
-    return total
+    return elements.electron_count(((a.symbol.value, a.ghost) for a in geometry.atoms), 0)
 
 
 def electron_count(rs: ResolvedState) -> Optional[int]:
