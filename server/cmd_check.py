@@ -3,20 +3,15 @@ from __future__ import annotations
 
 import sys
 
-from .checking import UsageError, check_paths, exceeds
-from .formats import FORMATS, available, renderer
+from .checking import check_paths
 from .parallel_check import add_scale_arguments, scale_options
+from .report_options import add_report_arguments, check_format, report
 
 HELP = "check deck files or folders and report findings"
 
 
 def add_arguments(p) -> None:
-    p.add_argument("paths", nargs="+", metavar="PATH", help="deck files or folders (searched for *.deck)")
-    p.add_argument("--format", default="text", choices=sorted(FORMATS), help="output format (default: text)")
-    p.add_argument("--fail-on", default="warning", choices=("error", "warning", "info", "never"),
-                   help="exit 1 when a finding is at or above this severity (default: warning)")
-    p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the path)")
-    p.add_argument("--output", "-o", metavar="FILE", help="write the report to FILE instead of standard output")
+    add_report_arguments(p)
     fixing = p.add_argument_group("fixes")
     fixing.add_argument("--fix", action="store_true", help="apply safe fixes to the files")
     fixing.add_argument("--fix-risky", action="store_true", help="apply risky fixes too (implies --fix)")
@@ -27,8 +22,7 @@ def add_arguments(p) -> None:
 
 
 def run(args) -> int:
-    if args.format not in available():
-        raise UsageError(f"the {args.format} format is not available in this build")
+    check_format(args)
     extra_output = ""
     if args.fix or args.fix_risky or args.diff:
         from .fixing import run_fixes  # the fix machinery (see docs/architecture.md)
@@ -36,15 +30,6 @@ def run(args) -> int:
         result, extra_output = run_fixes(args)
     else:
         result = check_paths(args.paths, config_path=args.config, probe=args.probe, **scale_options(args))
-    text = renderer(args.format)(result)
     if extra_output:  # the diff goes to standard output even when the report goes to --output
         sys.stdout.write(extra_output)
-    if args.output:
-        try:
-            with open(args.output, "w", encoding="utf-8") as f:
-                f.write(text)
-        except OSError as e:
-            raise UsageError(f"{args.output}: cannot be written ({e.strerror or e})")
-    else:
-        sys.stdout.write(text)
-    return 1 if exceeds(result.findings, args.fail_on) else 0
+    return report(args, result)

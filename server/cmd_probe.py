@@ -10,19 +10,14 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import CheckResult, UsageError, config_for, discover, exceeds, root_for
-from .formats import FORMATS, available, renderer
+from .checking import CheckResult, UsageError, config_for, discover, root_for
+from .report_options import add_report_arguments, check_format, report
 
 HELP = "run the PySCF probes (cheap Hartree-Fock checks with numbers) on deck files"
 
 
 def add_arguments(p) -> None:
-    p.add_argument("paths", nargs="+", metavar="DECK", help="deck files or folders (searched for *.deck)")
-    p.add_argument("--format", default="text", choices=sorted(FORMATS), help="output format (default: text)")
-    p.add_argument("--fail-on", default="warning", choices=("error", "warning", "info", "never"),
-                   help="exit 1 when a finding is at or above this severity (default: warning)")
-    p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the path)")
-    p.add_argument("--output", "-o", metavar="FILE", help="write the report to FILE instead of standard output")
+    add_report_arguments(p, paths_metavar="DECK")
     p.add_argument("--cache-dir", metavar="DIR",
                    help="results cache (default: $DECKWARD_CACHE_DIR/runs or ~/.cache/deckward/runs)")
 
@@ -33,8 +28,7 @@ def run(args) -> int:
     from deckward.rules.probes import PROBE_RULES, run_probes
     from deckward.rules.runner.cache import RunCache
 
-    if args.format not in available():
-        raise UsageError(f"the {args.format} format is not available in this build")
+    check_format(args)
     config = config_for(args.paths, args.config)
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}
@@ -54,14 +48,4 @@ def run(args) -> int:
                 continue
             extra = run_probes(ws, config, cache)
             findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
-    result = CheckResult(files, dedupe(findings), config)
-    text = renderer(args.format)(result)
-    if args.output:
-        try:
-            with open(args.output, "w", encoding="utf-8") as f:
-                f.write(text)
-        except OSError as e:
-            raise UsageError(f"{args.output}: cannot be written ({e.strerror or e})")
-    else:
-        sys.stdout.write(text)
-    return 1 if exceeds(result.findings, args.fail_on) else 0
+    return report(args, CheckResult(files, dedupe(findings), config))
