@@ -465,3 +465,27 @@ def reversed_differences(ws: Workspace, quantity: str):
         plus, minus = states
         if plus.charge - minus.charge == -1:
             yield d, plus, minus
+
+
+def kind_derives(ws: Workspace, kind: str):
+    """(derive, quantity) of each derive whose meaning depends on the study's
+    ``kind`` (vertical or adiabatic), when the study asks for that kind."""
+    study = ws.study
+    if study is None or study.kind is None or study.kind.value != kind:
+        return
+    for derive in ws.derives:
+        quantity = ws.quantity_of(derive)
+        if quantity in KIND_QUANTITIES:
+            yield derive, quantity
+
+
+def orbital_method(ws: Workspace, orbital: m.OrbitalOf):
+    """(state, method table entry) behind an orbital energy; None when the
+    state or its method is unknown (other rules report that)."""
+    from . import methods
+
+    rs = ws.states.get(orbital.state.value)
+    if rs is None or rs.settings.method is None:
+        return None
+    info = methods.lookup(rs.settings.method.value)
+    return None if info is None else (rs, info)

@@ -5,7 +5,7 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from ..context import Context
 from ..edits import fix, replace
-from ..ion_states import KIND_QUANTITIES, QUANTITY_NOUN, energy_states
+from ..ion_states import QUANTITY_NOUN, energy_states, kind_derives
 
 _HEAD = (
     'study "cn-screening" { goal = electron_affinity kind = adiabatic }\n'
@@ -53,14 +53,8 @@ def _atoms(geometry) -> int:
 
 def check(ctx: Context):
     ws = ctx.workspace
-    study = ws.study
-    if study is None or study.kind is None or study.kind.value != "adiabatic":
-        return
     seen = set()
-    for derive in ws.derives:
-        quantity = ws.quantity_of(derive)
-        if quantity not in KIND_QUANTITIES:
-            continue
+    for derive, quantity in kind_derives(ws, "adiabatic"):
         for rs in energy_states(ws, derive):
             ref = rs.state.geometry
             if ref is None or ref.optimize or rs.name in seen:

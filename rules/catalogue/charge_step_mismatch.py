@@ -5,12 +5,9 @@ from deckward.grammar.findings import Related, RuleInfo, Severity
 
 from ..context import Context
 from ..ion_states import EA, charge_text, difference_span, difference_states, ion_derives, span_text
+from ._examples import CN_RADICAL
 
-_HEAD = (
-    "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
-    "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n"
-    "state radical { geometry = cn level = hf_adz charge = 0 multiplicity = 2 }\n"
-)
+_HEAD = CN_RADICAL
 
 INFO = RuleInfo(
     id="charge-step-mismatch",

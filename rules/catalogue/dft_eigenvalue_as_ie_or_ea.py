@@ -4,7 +4,7 @@ from __future__ import annotations
 from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from ..context import Context
-from ..ion_states import IE, energy_difference_fix, ion_derives, level_label, method_text, orbital_phrase
+from ..ion_states import IE, energy_difference_fix, ion_derives, level_label, method_text, orbital_method, orbital_phrase
 
 _HEAD = (
     "geometry no2 {\n"
@@ -48,16 +48,14 @@ INFO = RuleInfo(
 
 
 def check(ctx: Context):
-    from .. import methods
-
     ws = ctx.workspace
     for d in ion_derives(ws):
         for coefficient, orbital in d.form.orbitals:
-            rs = ws.states.get(orbital.state.value)
-            if rs is None or rs.settings.method is None:
+            found = orbital_method(ws, orbital)
+            if found is None:
                 continue
-            info = methods.lookup(rs.settings.method.value)
-            if info is None or info.family != "dft" or info.eigenvalues_approximate_ie:
+            rs, info = found
+            if info.family != "dft" or info.eigenvalues_approximate_ie:
                 continue
             method = method_text(ws, rs)
             if d.quantity == IE:

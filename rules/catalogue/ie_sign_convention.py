@@ -6,17 +6,9 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 from ..context import Context
 from ..edits import fix
 from ..ion_states import IE, charge_text, difference_span, reversed_differences, span_text, swap_edits
+from ._examples import NO2_NEUTRAL_AND_CATION
 
-_HEAD = (
-    "geometry no2 {\n"
-    "  N  0.000000  0.000000  0.000000\n"
-    "  O  0.000000  1.098900  0.465300\n"
-    "  O  0.000000 -1.098900  0.465300\n"
-    "}\n"
-    "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n"
-    "state neutral { geometry = no2 level = hf_adz charge = 0 multiplicity = 2 }\n"
-    "state cation { geometry = no2 level = hf_adz charge = 1 multiplicity = 1 }\n"
-)
+_HEAD = NO2_NEUTRAL_AND_CATION
 
 INFO = RuleInfo(
     id="ie-sign-convention",

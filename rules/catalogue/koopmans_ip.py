@@ -4,18 +4,10 @@ from __future__ import annotations
 from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from ..context import Context
-from ..ion_states import IE, energy_difference_fix, ion_derives, level_label, method_text, orbital_phrase
+from ..ion_states import IE, energy_difference_fix, ion_derives, level_label, method_text, orbital_method, orbital_phrase
+from ._examples import NO2_NEUTRAL_AND_CATION
 
-_HEAD = (
-    "geometry no2 {\n"
-    "  N  0.000000  0.000000  0.000000\n"
-    "  O  0.000000  1.098900  0.465300\n"
-    "  O  0.000000 -1.098900  0.465300\n"
-    "}\n"
-    "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n"
-    "state neutral { geometry = no2 level = hf_adz charge = 0 multiplicity = 2 }\n"
-    "state cation { geometry = no2 level = hf_adz charge = 1 multiplicity = 1 }\n"
-)
+_HEAD = NO2_NEUTRAL_AND_CATION
 
 INFO = RuleInfo(
     id="koopmans-ip",
@@ -50,8 +42,6 @@ INFO = RuleInfo(
 
 
 def check(ctx: Context):
-    from .. import methods
-
     ws = ctx.workspace
     for d in ion_derives(ws):
         term = d.orbital_term
@@ -60,11 +50,11 @@ def check(ctx: Context):
         coefficient, orbital = term
         if orbital.orbital.value != "homo" or coefficient >= 0:
             continue
-        rs = ws.states.get(orbital.state.value)
-        if rs is None or rs.settings.method is None:
+        found = orbital_method(ws, orbital)
+        if found is None:
             continue
-        info = methods.lookup(rs.settings.method.value)
-        if info is None or info.family == "dft" or not info.eigenvalues_approximate_ie:
+        rs, info = found
+        if info.family == "dft" or not info.eigenvalues_approximate_ie:
             continue
         if info.family == "hf":
             where = f"at {level_label(ws, rs)} (Koopmans' theorem)"

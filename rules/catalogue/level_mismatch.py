@@ -7,12 +7,9 @@ from ..context import Context
 from ..edits import fix
 from ..ion_states import energy_states, level_differences, level_label, span_text
 from ..state_text import StateEditor
+from ._examples import CN_RADICAL
 
-_HEAD = (
-    "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
-    "level hf_adz { method = hf basis = aug-cc-pvdz reference = unrestricted }\n"
-    "state radical { geometry = cn level = hf_adz charge = 0 multiplicity = 2 }\n"
-)
+_HEAD = CN_RADICAL
 _DERIVE = "derive ea = energy(radical) - energy(anion) in ev\n"
 
 INFO = RuleInfo(

@@ -5,7 +5,7 @@ from deckward.grammar.findings import Applicability, Related, RuleInfo, Severity
 
 from ..context import Context
 from ..edits import fix, replace
-from ..ion_states import KIND_QUANTITIES, QUANTITY_NOUN, energy_states, span_text
+from ..ion_states import QUANTITY_NOUN, energy_states, kind_derives, span_text
 
 _HEAD = (
     'study "cn-screening" { goal = electron_affinity kind = vertical }\n'
@@ -52,14 +52,8 @@ INFO = RuleInfo(
 
 def check(ctx: Context):
     ws = ctx.workspace
-    study = ws.study
-    if study is None or study.kind is None or study.kind.value != "vertical":
-        return
     seen = set()
-    for derive in ws.derives:
-        quantity = ws.quantity_of(derive)
-        if quantity not in KIND_QUANTITIES:
-            continue
+    for derive, quantity in kind_derives(ws, "vertical"):
         states = [s for s in energy_states(ws, derive) if s.state.geometry is not None]
         if len(states) < 2:
             continue
