@@ -2,7 +2,8 @@
 never raises, never makes a parsing deck unparsable, no rule crashes on the
 way, and fixing the result again changes nothing."""
 import os
-import tempfile
+
+import pytest
 
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -12,8 +13,16 @@ from deckward.grammar.resolve import Loader, resolve
 from deckward.rules.engine import check_workspace
 from deckward.rules.fixes import fix_text
 
-FOLDER = tempfile.mkdtemp(prefix="deckward-fix-hypothesis-")
-PATH = os.path.join(FOLDER, "generated.deck")
+FOLDER = ""  # set per module by the fixture below, inside pytest's own temporary folder
+PATH = ""
+
+
+@pytest.fixture(autouse=True, scope="module")
+def _module_folder(tmp_path_factory):
+    global FOLDER, PATH
+    FOLDER = str(tmp_path_factory.mktemp("fix-hypothesis"))
+    PATH = os.path.join(FOLDER, "generated.deck")
+
 
 # Words a screening group would type, right and wrong (wrong ones draw findings with fixes).
 ELEMENTS = ["H", "C", "N", "O", "F", "S", "Cl", "cl", "Na", "Xx", "Q", "Oo"]

@@ -2,7 +2,8 @@
 finding's span lies inside its file."""
 import os
 import random
-import tempfile
+
+import pytest
 
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -25,7 +26,13 @@ derive ea as electron_affinity = energy(neutral) - energy(anion) in ev  # allow:
 derive ea_eig = -orbital(neutral, lumo+1, beta) * 2 / (1 + 1) in kcal/mol
 '''
 
-FOLDER = tempfile.mkdtemp(prefix="deckward-fuzz-")
+FOLDER = ""  # set per module by the fixture below, inside pytest's own temporary folder
+
+
+@pytest.fixture(autouse=True, scope="module")
+def _module_folder(tmp_path_factory):
+    global FOLDER
+    FOLDER = str(tmp_path_factory.mktemp("fuzz"))
 
 
 def check_bytes(data: bytes, name="fuzz.deck"):

@@ -5,6 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Optional
 
+from ..units import unit_symbol
+
 CAUTION = (
     "Computed values depend on the method and the basis set; decisions that rest on them need "
     "comparison with experiment and expert judgement."
@@ -86,7 +88,7 @@ def format_report(report: RunReport) -> str:
     if report.derived:
         drows = []
         for d in report.derived:
-            drows.append([d.name, d.quantity or "", _fmt(d.value, 6), d.unit if d.available else "",
+            drows.append([d.name, d.quantity or "", _fmt(d.value, 6), unit_symbol(d.unit) if d.available else "",
                           "" if d.available else f"not available: {d.reason}"])
         out += ["", _table(["derived", "quantity", "value", "unit", ""], drows)]
     out += ["", "Caution: " + CAUTION, ""]
