@@ -282,8 +282,10 @@ def identify_geometry(geometry) -> Species | None:
     ghost atoms left out, coordinates converted to angstrom."""
     from .geometry import scale_to_angstrom
 
-    scale = scale_to_angstrom(geometry.unit)
     real = [a for a in geometry.atoms if not a.ghost]
+    if not real or len(real) > _MAX_ATOMS:
+        return None
+    scale = scale_to_angstrom(geometry.unit)
     return identify(
         [a.symbol.value for a in real],
         [tuple(c * scale for c in a.xyz) for a in real],
