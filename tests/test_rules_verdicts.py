@@ -286,3 +286,30 @@ def test_counterpoise_complex_is_quiet():
 def test_counterpoise_geometries_in_a_used_file():
     text = 'use "cp.deck"\n' + COMPLEX
     assert run(text, "disconnected-fragments", files={"cp.deck": CN_IN_DIMER_BASIS}) == []
+
+
+# --- unknown-method: recognised methods and suggestion quality ---------------------
+
+
+def test_casscf_is_recognised_and_gets_no_bad_suggestion():
+    text = CN + "level mr { method = casscf basis = cc-pvdz }\n"
+    findings, _ = check_text(text, select={"unknown-method"})
+    [f] = findings
+    assert f.message == (
+        "`casscf` in level `mr` is a multiconfigurational method (complete active space SCF), which deckward "
+        "recognises but cannot judge or run: the rules about orbital energies, correlation and basis size stay "
+        "silent about it, and `deckward run` cannot compute it"
+    )
+    assert f.severity.value == "info" and f.fixes == ()
+    for word in ("CASPT2", "nevpt2", "EOM-IP-CCSD", "g0w0"):
+        [g] = check_text(CN + f"level mr {{ method = {word} basis = cc-pvdz }}\n", select={"unknown-method"})[0]
+        assert "did you mean" not in g.message and "recognises but cannot judge or run" in g.message
+
+
+def test_did_you_mean_needs_a_word_of_similar_length():
+    from deckward.rules import methods
+
+    assert methods.closest("casscf") == []
+    assert methods.closest("casscff") == []  # "scf" is a shared tail, not a typo
+    assert methods.closest("b3lpy")[0] == "b3lyp"
+    assert methods.closest("ccsd(t") == ["ccsd(t)", "ccsd", "cisd"]

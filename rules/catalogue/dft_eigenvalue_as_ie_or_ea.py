@@ -30,7 +30,7 @@ INFO = RuleInfo(
     ),
     references=(
         "J. F. Janak, \"Proof that dE/dn_i = e_i in density-functional theory\", Phys. Rev. B 18, "
-        "7165 (1978) [volume and page from memory]",
+        "7165 (1978)",  # volume and page from memory
         "U. Salzner, R. Baer, J. Chem. Phys. 131, 231101 (2009) (-e(HOMO) of common functionals is "
         "not the ionization energy)",
         "N. Roesch, S. B. Trickey, J. Chem. Phys. 106, 8940 (1997) (anion HOMO energies of common "

@@ -20,8 +20,7 @@ INFO = RuleInfo(
         "other geometries of the deck carry as ghost atoms (the fragments in the complex's basis)."
     ),
     references=(
-        "S. F. Boys, F. Bernardi, Mol. Phys. 19, 553-566 (1970): the counterpoise correction "
-        "[from memory]",
+        "S. F. Boys, F. Bernardi, Mol. Phys. 19, 553-566 (1970): the counterpoise correction",  # from memory
         "B. Cordero et al., 'Covalent radii revisited', Dalton Trans. 2008, 2832-2838, "
         "doi:10.1039/b801115j (the radii)",
     ),

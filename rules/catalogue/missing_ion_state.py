@@ -47,7 +47,7 @@ INFO = RuleInfo(
         "as energy differences",
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 "
-        "(Koopmans' theorem: no relaxation, no correlation) [from memory]",
+        "(Koopmans' theorem: no relaxation, no correlation)",  # from memory
     ),
     bad_example=_HEAD + "derive ea_eig = -orbital(radical, lumo) in ev\n",
     fires_at="ea_eig",

@@ -45,7 +45,7 @@ INFO = RuleInfo(
     references=(
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 (Koopmans' "
-        "electron affinities: relaxation and correlation errors add) [from memory]",
+        "electron affinities: relaxation and correlation errors add)",  # from memory
         "F. Jensen, J. Chem. Theory Comput. 6, 2726 (2010) (anions and diffuse functions; virtual "
         "orbital energies depend on the basis)",
         "J. C. Rienstra-Kiracofe et al., Chem. Rev. 102, 231-282 (2002)",
