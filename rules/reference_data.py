@@ -299,7 +299,15 @@ def citation(measured: Measured) -> str:
 
 def format_value(measured: Measured) -> str:
     """``2.273 +- 0.005 eV`` (or ``13.598 eV`` without an uncertainty)."""
-    value = f"{measured.value_ev:g}"
+    value = _plain(measured.value_ev)
     if measured.uncertainty_ev is None:
         return f"{value} eV"
-    return f"{value} +- {measured.uncertainty_ev:g} eV"
+    return f"{value} +- {_plain(measured.uncertainty_ev)} eV"
+
+
+def _plain(x: float) -> str:
+    """All the digits the table holds, without exponent notation."""
+    text = repr(float(x))
+    if "e" in text or "E" in text:
+        text = f"{x:.12f}".rstrip("0").rstrip(".")
+    return text

@@ -313,3 +313,41 @@ def test_did_you_mean_needs_a_word_of_similar_length():
     assert methods.closest("casscff") == []  # "scf" is a shared tail, not a typo
     assert methods.closest("b3lpy")[0] == "b3lyp"
     assert methods.closest("ccsd(t") == ["ccsd(t)", "ccsd", "cisd"]
+
+
+# --- probe-unbound-anion: what the message blames ----------------------------------
+# The HOMO and delta-SCF numbers below are inputs for the wording only (demo numbers);
+# the species facts are the reference table's (EA(O) 1.46111297 eV, electron affinity
+# data page; N2 unbound, NIST CCCBDB).
+
+
+def test_probe_blames_correlation_for_oxygen_in_a_diffuse_basis():
+    from deckward.rules.probes.unbound_anion import verdict
+    from deckward.rules.reference_data import by_key
+
+    text = verdict("anion", "aug-cc-pvdz", homo_ev=-1.2, delta_ev=-0.5, species=by_key("O"), diffuse_basis=True)
+    assert text == (
+        "at HF/aug-cc-pvdz `anion` lies above the neutral: the delta-SCF EA is -0.50 eV (the anion lies higher), "
+        "although its HOMO energy, -1.20 eV, is below zero; oxygen atom (O) has a bound anion (measured EA "
+        "1.46111297 +- 0.00000009 eV, Electron affinity (data page), Wikipedia, compiling the primary photodetachment "
+        "measurements) and this basis already has diffuse functions, so the likelier cause is Hartree-Fock's "
+        "missing correlation, which underbinds anions (O- and OH- are the classic cases): the deck's correlated "
+        "method may well bind it"
+    )
+    assert "not bound" not in text  # the HOMO is negative: the orbital is bound
+
+
+def test_probe_wording_for_a_positive_homo_and_an_unbound_species():
+    from deckward.rules.probes.unbound_anion import verdict
+    from deckward.rules.reference_data import by_key
+
+    text = verdict("anion", "cc-pvdz", homo_ev=0.8, delta_ev=-2.0, species=by_key("N2"), diffuse_basis=False)
+    assert text.startswith(
+        "at HF/cc-pvdz the extra electron of `anion` is not bound: its HOMO energy is +0.80 eV (above zero) and "
+        "the delta-SCF EA is -2.00 eV (the anion lies higher); dinitrogen (N2) has no bound gas-phase anion"
+    )
+    assert verdict("anion", "aug-cc-pvdz", homo_ev=-3.0, delta_ev=3.0, species=by_key("F"), diffuse_basis=True) is None
+    unknown = verdict("anion", "cc-pvdz", homo_ev=0.1, delta_ev=0.2, species=None, diffuse_basis=False)
+    assert "either the anion is not bound" in unknown
+    tight = verdict("anion", "6-31g*", homo_ev=-0.5, delta_ev=-0.5, species=by_key("C"), diffuse_basis=False)
+    assert "both the missing correlation and this basis's missing diffuse functions" in tight
