@@ -218,3 +218,25 @@ def test_species_are_hashable_and_immutable():
 def test_format_value():
     assert rd.format_value(rd.by_key("NO2").electron_affinity) == "2.273 +- 0.005 eV"
     assert math.isclose(rd.by_key("F").electron_affinity.uncertainty_ev, 0.0000024)
+
+
+def test_tabulated_multiplicities_fit_the_electron_counts():
+    # M - 1 unpaired electrons: M - 1 has the parity of N (IUPAC Gold Book, spin
+    # multiplicity 2S + 1, from memory), so no row can claim an impossible state.
+    from deckward.rules import elements
+
+    for sp in rd.all_species():
+        z = sum(elements.lookup(s).z * n for s, n in sp.composition.items())
+        for charge, mult in sp.multiplicities.items():
+            n = z - charge
+            assert (mult - 1) % 2 == n % 2 and mult - 1 <= n, (sp.key, charge, mult)
+
+
+def test_every_species_with_its_own_formula_is_found_from_composition():
+    formulas: dict[str, int] = {}
+    for sp in rd.all_species():
+        formulas[sp.formula] = formulas.get(sp.formula, 0) + 1
+    for sp in rd.all_species():
+        symbols = [s for s, n in sp.composition.items() for _ in range(n)]
+        found = identify(symbols)
+        assert (found.key if found else None) == (sp.key if formulas[sp.formula] == 1 else None), sp.key

@@ -34,9 +34,9 @@ INFO = RuleInfo(
     ),
     references=(
         "E. B. Wilson, J. C. Decius, P. C. Cross, Molecular Vibrations (McGraw-Hill 1955) (normal "
-        "modes about an equilibrium structure)",
+        "modes about an equilibrium structure)",  # from memory
         "F. Jensen, Introduction to Computational Chemistry, 3rd ed. (Wiley 2017), chapter on "
-        "optimisation and vibrational frequencies",
+        "optimisation and vibrational frequencies",  # from memory
     ),
     bad_example=_CN + _LEVEL + _radical("cn"),
     fires_at="cn",

@@ -30,11 +30,11 @@ INFO = RuleInfo(
     ),
     references=(
         "A. Kramida, Yu. Ralchenko, J. Reader and NIST ASD Team, NIST Atomic Spectra Database, "
-        "physics.nist.gov/asd (ground terms of atoms and atomic ions)",
+        "physics.nist.gov/asd (ground terms of atoms and atomic ions)",  # from memory
         "K. P. Huber, G. Herzberg, Molecular Spectra and Molecular Structure IV: Constants of Diatomic "
-        "Molecules (Van Nostrand 1979)",
+        "Molecules (Van Nostrand 1979)",  # from memory
         "G. Herzberg, Molecular Spectra and Molecular Structure III: Electronic Spectra of Polyatomic "
-        "Molecules (Van Nostrand 1966)",
+        "Molecules (Van Nostrand 1966)",  # from memory
     ),
     bad_example=_O2 + _LEVEL + "state neutral { geometry = o2 level = hf_adz charge = 0 multiplicity = 1 }\n",
     fires_at="1",

@@ -35,10 +35,10 @@ INFO = RuleInfo(
         "Compute the three states and take the energy differences."
     ),
     references=(
-        "J. P. Perdew, M. Levy, Phys. Rev. Lett. 51, 1884 (1983) (the derivative discontinuity)",
-        "L. J. Sham, M. Schlueter, Phys. Rev. Lett. 51, 1888 (1983)",
+        "J. P. Perdew, M. Levy, Phys. Rev. Lett. 51, 1884 (1983) (the derivative discontinuity)",  # from memory
+        "L. J. Sham, M. Schlueter, Phys. Rev. Lett. 51, 1888 (1983)",  # from memory
         "E. J. Baerends, O. V. Gritsenko, R. van Meer, Phys. Chem. Chem. Phys. 15, 16408 (2013) "
-        "(Kohn-Sham gap, fundamental gap and optical gap)",
+        "(Kohn-Sham gap, fundamental gap and optical gap)",  # from memory
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
     ),
     bad_example=_HEAD + "derive gap = orbital(neutral, lumo) - orbital(neutral, homo) in ev\n",

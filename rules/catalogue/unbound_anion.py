@@ -34,8 +34,8 @@ INFO = RuleInfo(
     ),
     references=(
         "K. D. Jordan, P. D. Burrow, Acc. Chem. Res. 11, 341 (1978) (temporary anions measured by "
-        "electron transmission spectroscopy)",
-        "J. Simons, J. Phys. Chem. A 112, 6401 (2008) (molecular anions, bound and metastable)",
+        "electron transmission spectroscopy)",  # from memory
+        "J. Simons, J. Phys. Chem. A 112, 6401 (2008) (molecular anions, bound and metastable)",  # from memory
         "J. C. Rienstra-Kiracofe, G. S. Tschumper, H. F. Schaefer III, S. Nandi, G. B. Ellison, Chem. "
         "Rev. 102, 231-282 (2002)",
         "F. Jensen, J. Chem. Theory Comput. 6, 2726 (2010) (unbound anions and diffuse functions)",
