@@ -174,8 +174,12 @@ def test_impossible_multiplicity_is_left_to_the_electron_count_rule():
 def test_untabulated_species_and_dissociated_atoms_are_silent():
     far = "geometry oo {\n  O 0 0 0\n  O 0 0 3.0\n}\n"
     assert run(far + HF + state("pair", "oo", 0, 1), "multiplicity-not-ground-state") == []
+    hno = "geometry hno {\n  N 0 0 0\n  O 0 0 1.21\n  H 0 1.0 -0.3\n}\n"  # not in the table
+    assert run(hno + HF + state("neutral", "hno", 0, 3), "multiplicity-not-ground-state") == []
+    # Ozone is a closed-shell singlet (Herzberg 1966, from memory): its singlet is the ground state.
     ozone = "geometry o3 {\n  O 0 0 0\n  O 0 1.09 0.67\n  O 0 -1.09 0.67\n}\n"
     assert run(ozone + HF + state("neutral", "o3", 0, 1), "multiplicity-not-ground-state") == []
+    assert [f[2] for f in run(ozone + HF + state("neutral", "o3", 0, 3), "multiplicity-not-ground-state")] == ["3"]
 
 
 # --- orbital-gap-as-fundamental-gap -----------------------------------------------
