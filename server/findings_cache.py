@@ -93,9 +93,10 @@ def default_cache_dir() -> str:
 def file_digest(path: str) -> Optional[str]:
     """sha256 of a file's bytes; None when it does not exist or cannot be
     read (the deck's findings then say so, and the entry remembers it)."""
+    from deckward.grammar.safe_open import read_regular  # never blocks on a FIFO; NUL paths are OSError
+
     try:
-        with open(path, "rb") as f:
-            return hashlib.sha256(f.read()).hexdigest()
+        return hashlib.sha256(read_regular(path)).hexdigest()
     except OSError:
         return None
 
