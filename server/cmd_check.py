@@ -4,7 +4,7 @@ from __future__ import annotations
 import sys
 
 from .checking import check_paths
-from .parallel_check import add_scale_arguments, scale_options
+from .scale_options import add_scale_arguments, scale_options
 from .report_options import add_report_arguments, check_format, report
 
 HELP = "check deck files or folders and report findings"

@@ -27,6 +27,8 @@ from typing import Any, Iterable, Optional
 from deckward import __version__
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 
+from .scale_options import default_cache_dir  # noqa: F401  (re-exported)
+
 FORMAT = 1  # bump when the entry layout changes
 
 
@@ -81,14 +83,6 @@ def finding_from_dict(d: dict) -> Finding:
 
 
 # -- keys ----------------------------------------------------------------------------
-
-def default_cache_dir() -> str:
-    """``$DECKWARD_CACHE_DIR/findings``, else ``~/.cache/deckward/findings``."""
-    base = os.environ.get("DECKWARD_CACHE_DIR")
-    if base:
-        return os.path.join(base, "findings")
-    return os.path.join(os.path.expanduser("~"), ".cache", "deckward", "findings")
-
 
 def file_digest(path: str) -> Optional[str]:
     """sha256 of a file's bytes; None when it does not exist or cannot be
