@@ -170,7 +170,7 @@ def _hammer(args):
     cache = FindingsCache(folder)
     span = Span("a.deck", 0, 1, 1, 1, 1, 2)
     for i in range(n):
-        cache.put(key, [], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
+        cache.put(key, ["a.deck"], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
         got = cache.get(key)
         assert got is not None and len(got) == 1
     return cache.write_errors
