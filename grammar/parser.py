@@ -9,10 +9,8 @@ from __future__ import annotations
 
 import hashlib
 import os
-import tempfile
 from collections import OrderedDict
 from dataclasses import dataclass
-from importlib import resources
 from typing import Optional
 
 from .findings import Finding, Severity
@@ -26,7 +24,10 @@ _parser = None
 
 
 def grammar_text() -> str:
-    return resources.files("deckward.grammar").joinpath("deck.lark").read_text(encoding="utf-8")
+    """The grammar file beside this module (read directly: importlib.resources
+    costs more to import than the read itself)."""
+    with open(os.path.join(os.path.dirname(os.path.abspath(__file__)), "deck.lark"), encoding="utf-8") as f:
+        return f.read()
 
 
 def _cache_dir() -> str:
@@ -48,6 +49,8 @@ def get_parser():
     text = grammar_text()
     options = dict(parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=False)
     digest = hashlib.sha256((text + lark.__version__).encode()).hexdigest()[:16]
+    import tempfile
+
     for folder in (_cache_dir(), tempfile.gettempdir()):
         try:
             os.makedirs(folder, exist_ok=True)

@@ -14,6 +14,8 @@ from deckward.grammar.resolve import Loader, resolve, shown
 from deckward.rules.config import Config, find_config, load_config
 from deckward.rules.engine import check_workspace, dedupe, known_rule_ids
 
+from .scale_options import IN_PROCESS_BELOW
+
 
 class UsageError(Exception):
     """A problem with the command line itself (exit status 2)."""
@@ -113,7 +115,7 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
                 loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None) -> CheckResult:
+                cache_dir: Optional[str] = None, cache_from: int = 1) -> CheckResult:
     """Check every deck below ``paths``.  With ``probe``, the PySCF probes
     run too (``deckward.rules.probes``) and their findings go through the
     same severity and suppression handling.
@@ -121,7 +123,12 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     ``jobs``: worker processes (0: one per core); ``cache_dir``: a findings
     cache folder (None: no cache).  Both go through
     ``deckward.server.parallel_check``; the findings are the same either
-    way.  A loader with unsaved editor text is never cached or shared."""
+    way.  ``cache_from``: use the cache only from this many decks on (the
+    command line's default cache is not worth opening for one deck).  A
+    loader with unsaved editor text is never cached or shared.
+
+    Few decks without a cache are checked right here: the single-deck path
+    imports neither the parallel checker nor the cache."""
     config = config or config_for(paths, config_path)
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
@@ -131,9 +138,11 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
         for path in discover([given], config, skipped):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
+    if (loader is not None and loader.overlay) or len(tasks) < cache_from:
+        cache_dir = None
     if loader is not None and loader.overlay:
-        jobs, cache_dir = 1, None
-    if jobs == 1 and cache_dir is None:
+        jobs = 1
+    if cache_dir is None and (jobs == 1 or len(tasks) < IN_PROCESS_BELOW):
         loader = loader or Loader()
         for path, root in tasks:
             try:

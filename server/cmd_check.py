@@ -4,11 +4,8 @@ from __future__ import annotations
 import os
 import sys
 
-from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace, dedupe
-
 from .checking import CheckResult, UsageError, check_paths, config_for, root_for
-from .parallel_check import add_scale_arguments, scale_options
+from .scale_options import add_scale_arguments, scale_options
 from .report_options import add_report_arguments, check_format, report
 
 HELP = "check deck files or folders and report findings"
@@ -55,6 +52,9 @@ def _check_standard_input(args):
         text = sys.stdin.buffer.read().decode("utf-8")
     except UnicodeDecodeError as e:
         raise UsageError(f"standard input: not valid UTF-8 (byte {e.start})")
+    from deckward.grammar.resolve import Loader, resolve
+    from deckward.rules.engine import check_workspace, dedupe
+
     path = os.path.normpath(args.stdin_name)
     loader = Loader({os.path.abspath(path): text})
     folder = os.path.dirname(os.path.abspath(path))

@@ -122,12 +122,15 @@ def test_unwritable_cache_is_a_note_not_a_failure(tmp_path):
 
 
 def test_cli_cache_options(tmp_path, monkeypatch, capsys):
-    root = write_batch(str(tmp_path / "w"), {"cn.deck": DECKS["cn_restricted.deck"]})
+    root = write_batch(str(tmp_path / "w"), {"cn.deck": DECKS["cn_restricted.deck"],
+                                             "cn2.deck": DECKS["cn_restricted.deck"]})
     monkeypatch.setenv("DECKWARD_CACHE_DIR", str(tmp_path / "env"))
     main(["check", root, "--no-cache"])
     assert not (tmp_path / "env").exists()
+    main(["check", os.path.join(root, "cn.deck")])
+    assert not (tmp_path / "env").exists()  # one deck: the default cache is not worth opening
     main(["check", root])
-    assert list((tmp_path / "env" / "findings").rglob("*.json"))
+    assert len(list((tmp_path / "env" / "findings").rglob("*.json"))) == 2
     main(["check", root, "--cache-dir", str(tmp_path / "given"), "--jobs", "2"])
     assert list((tmp_path / "given").rglob("*.json"))
     capsys.readouterr()
@@ -167,7 +170,7 @@ def _hammer(args):
     cache = FindingsCache(folder)
     span = Span("a.deck", 0, 1, 1, 1, 1, 2)
     for i in range(n):
-        cache.put(key, [], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
+        cache.put(key, ["a.deck"], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
         got = cache.get(key)
         assert got is not None and len(got) == 1
     return cache.write_errors
