@@ -316,7 +316,10 @@ class FindingsCache:
         counted and otherwise ignored (checking must not fail because of it)."""
         import tempfile  # only a run that writes entries pays for it
 
-        dep_rows = [[d, os.path.realpath(d), self.digest(d)] for d in deps]
+        try:
+            dep_rows = [[d, os.path.realpath(d), self.digest(d)] for d in deps]
+        except (OSError, ValueError):  # a `use` path no file can have (a NUL byte): not cacheable
+            return
         rows = [finding_to_dict(f) for f in findings]
         # Round-trip through JSON first, so that the checksum covers exactly what a reader decodes.
         dep_rows, rows = json.loads(json.dumps([dep_rows, rows], ensure_ascii=False))
