@@ -11,7 +11,7 @@ import pytest
 from deck_batch import DECKS, write_batch
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 from deckward.server import findings_cache
-from deckward.server.checking import UsageError, check_paths
+from deckward.server.checking import check_paths
 from deckward.server.cli import main
 from deckward.server.findings_cache import FindingsCache, finding_from_dict, finding_to_dict
 from deckward.server.parallel_check import IN_PROCESS_BELOW
