@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import hashlib
 import os
+import re
 import tempfile
 from collections import OrderedDict
 from dataclasses import dataclass
@@ -221,7 +222,10 @@ def _parse_chunk(parser, body: str, chunk_len: int):
 
     def on_error(e):
         errors.append(e)
-        return len(errors) <= MAX_SKIPS_PER_STATEMENT
+        if len(errors) > MAX_SKIPS_PER_STATEMENT:
+            return False
+        _drop_dangling_key(e, body)
+        return True
 
     try:
         tree = parser.parse(body, on_error=on_error)
@@ -241,8 +245,58 @@ def _parse_chunk(parser, body: str, chunk_len: int):
     return result
 
 
+def _drop_dangling_key(e, body: str) -> None:
+    """Recover from a key typed without its ``= value``.
+
+    ``state cation { geometry  level = x }`` (or a key just before ``}``):
+    Lark would drop ``level`` and read ``geometry = x``, so the settings
+    after the half-typed word change meaning (a level taken for a geometry,
+    a key set twice).  Instead forget the lone key and give the parser the
+    token it stumbled on, as if the key had not been typed yet; the finding
+    then names the key (``e.dangling_key``)."""
+    import lark
+
+    ip = getattr(e, "interactive_parser", None)
+    if not isinstance(e, lark.exceptions.UnexpectedToken) or ip is None or "EQUAL" not in e.expected:
+        return
+    state = ip.parser_state
+    if len(state.state_stack) < 2 or not state.value_stack:
+        return
+    key = state.value_stack[-1]
+    if not isinstance(key, lark.Token) or key.type != "NAME":
+        return
+    before = state.parse_conf.parse_table.states[state.state_stack[-2]]
+    if "RBRACE" not in before:  # not where an item of a block starts
+        return
+    token = e.token
+    if token.start_pos is None or not (
+        token.type == "RBRACE" or token.line > key.line or body[token.end_pos :].lstrip().startswith("=")
+    ):
+        return
+    if token.type not in before:
+        if "NAME" not in before or not _NAME_RE.match(str(token)):
+            return
+        token = lark.Token.new_borrow_pos("NAME", str(token), token)
+    saved = (list(state.state_stack), list(state.value_stack))
+    state.state_stack.pop()
+    state.value_stack.pop()
+    try:
+        ip.feed_token(token)
+    except lark.exceptions.UnexpectedInput:
+        state.state_stack[:], state.value_stack[:] = saved
+        return
+    e.dangling_key = key
+
+
+_NAME_RE = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+
+
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
     import lark
+
+    key = getattr(e, "dangling_key", None)
+    if key is not None and key.start_pos is not None and key.start_pos < chunk_len:
+        return key.start_pos, min(key.end_pos, chunk_len), f"expected `=` and a value after `{key}`"
 
     if isinstance(e, lark.exceptions.UnexpectedToken):
         tok = e.token
