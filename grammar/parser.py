@@ -17,7 +17,7 @@ from importlib import resources
 from typing import Optional
 
 from .findings import Finding, Severity
-from .scanner import STATEMENT_KEYWORDS, Chunk, scan
+from .scanner import STATEMENT_KEYWORDS, Chunk, content_end, scan
 from .text_index import LineIndex
 
 MAX_SYNTAX_FINDINGS = 50
@@ -301,12 +301,12 @@ def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
     if isinstance(e, lark.exceptions.UnexpectedToken):
         tok = e.token
         if tok.type == "$END" or tok.start_pos is None:
-            pos = min(len(body.rstrip()), chunk_len)
+            pos = content_end(body[:chunk_len])
             return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
         start = min(tok.start_pos, chunk_len)
         end = min(tok.end_pos or start, chunk_len)
         if tok.type == "RBRACE" and start >= chunk_len:  # a virtual closing brace
-            pos = min(len(body[:chunk_len].rstrip()), chunk_len)
+            pos = content_end(body[:chunk_len])
             return (max(0, pos - 1), pos, f"unexpected end of the block: expected {describe_expected(e.expected)}")
         return start, end, f"expected {describe_expected(e.expected)} but found {_describe_token(tok)}"
     if isinstance(e, lark.exceptions.UnexpectedCharacters):
@@ -320,6 +320,6 @@ def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
             return pos, pos + 1, f"unexpected character `{shown}`: expected {describe_expected(allowed)}"
         return pos, pos + 1, f"unexpected character `{shown}`"
     if isinstance(e, lark.exceptions.UnexpectedEOF):
-        pos = min(len(body.rstrip()), chunk_len)
+        pos = content_end(body[:chunk_len])
         return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
     return 0, 0, f"the statement could not be parsed ({type(e).__name__})"

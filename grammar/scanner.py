@@ -16,6 +16,9 @@ STATEMENT_KEYWORDS = frozenset({"use", "study", "geometry", "basis_set", "level"
 # Tokens after which a keyword-looking word is a name, not a new statement.
 _CONTINUATIONS = frozenset(STATEMENT_KEYWORDS | {"as", "in", "=", "(", ",", ":", "+", "-", "*", "/"})
 
+# Words that continue a statement on a later line (`derive ea\n  as ...`).
+_INFIXES = frozenset({"as", "in"})
+
 _TOKEN = re.compile(
     r"""
     (?P<ws>[ \t\f\r\ufeff]+)
@@ -108,6 +111,13 @@ def scan(text: str) -> ScanResult:
             name = text[nxt[1] : nxt[2]] if nxt and nxt[0] == "ident" else None
             chunks.append(Chunk(start, len(text), low, name))
             current_keyword = (low, start)
+        elif (kind == "ident" and at_line_start and not blocks and parens == 0
+              and prev not in _CONTINUATIONS and low not in _INFIXES):
+            # A word typed after a finished statement (`le` on its way to
+            # `level`) is a statement of its own, not part of the one before.
+            chunks[-1].end = start
+            chunks.append(Chunk(start, len(text)))
+            current_keyword = None
         if kind == "open":
             kw = current_keyword or ("", start)
             blocks.append(OpenBlock(kw[0], kw[1], start))
@@ -130,6 +140,17 @@ def scan(text: str) -> ScanResult:
             unclosed_all.append((b, len(text), None))
         chunks[-1].unclosed.extend(blocks)
     return ScanResult(chunks, comments, unclosed_all, strays)
+
+
+def content_end(text: str) -> int:
+    """Where the last token of ``text`` that is not a comment ends: the place
+    to report "unexpected end" at, rather than after trailing comments and
+    blank lines (which belong, in an editor, to whatever follows)."""
+    end = 0
+    for m in _TOKEN.finditer(text):
+        if m.lastgroup not in ("ws", "nl", "comment"):
+            end = m.end()
+    return end
 
 
 def _starts_statement(tokens, i, n, text, keyword, at_line_start, nested, after_continuation) -> bool:
