@@ -114,3 +114,17 @@ def test_neovim_07_config_one_client_per_workspace(tmp_path):
                     reason=f"the 0.8+ config needs Neovim 0.8 or later (installed: {NVIM_VERSION})")
 def test_neovim_08_config_one_client_per_workspace(tmp_path):
     assert_one_client_sees_the_unsaved_edit(run_workspace_config(tmp_path, "deckward.lua"))
+
+
+@pytest.mark.skipif(NVIM is None, reason="nvim is not installed (apt-get install neovim); CI installs it")
+@pytest.mark.parametrize("config", ["deckward.lua", "deckward-0.7.lua"])
+def test_neovim_configs_compile(config, tmp_path):
+    """Both files are valid Lua for Neovim's LuaJIT, whichever version runs."""
+    path = os.path.join(EDITORS, config)
+    proc = subprocess.run(
+        [NVIM, "--headless", "-n", "-i", "NONE", "-u", "NONE",
+         "-c", f"lua local f, err = loadfile({json.dumps(path)}); if not f then io.stderr:write(err); vim.cmd('cquit 1') end",
+         "-c", "qa!"],
+        env=dict(os.environ, XDG_STATE_HOME=str(tmp_path), XDG_CACHE_HOME=str(tmp_path), XDG_DATA_HOME=str(tmp_path)),
+        stdin=subprocess.DEVNULL, capture_output=True, text=True, timeout=30)
+    assert proc.returncode == 0, proc.stderr
