@@ -224,7 +224,7 @@ def _parse_chunk(parser, body: str, chunk_len: int):
         errors.append(e)
         if len(errors) > MAX_SKIPS_PER_STATEMENT:
             return False
-        _drop_dangling_key(e, body)
+        _drop_unfinished_setting(e, body)
         return True
 
     try:
@@ -245,47 +245,62 @@ def _parse_chunk(parser, body: str, chunk_len: int):
     return result
 
 
-def _drop_dangling_key(e, body: str) -> None:
-    """Recover from a key typed without its ``= value``.
+def _drop_unfinished_setting(e, body: str) -> None:
+    """Recover from a setting typed without its value.
 
-    ``state cation { geometry  level = x }`` (or a key just before ``}``):
-    Lark would drop ``level`` and read ``geometry = x``, so the settings
-    after the half-typed word change meaning (a level taken for a geometry,
-    a key set twice).  Instead forget the lone key and give the parser the
-    token it stumbled on, as if the key had not been typed yet; the finding
-    then names the key (``e.dangling_key``)."""
+    ``state cation { geometry  level = x }``, ``{ geometry =  level = x }``
+    (or either just before ``}``): Lark would skip the token it stumbled on
+    and read ``geometry = x`` or ``geometry = level``, so the settings after
+    the half-typed one change meaning (a level taken for a geometry, a key
+    set twice).  Instead forget the unfinished setting and give the parser
+    the tokens after it, as if it had not been typed yet; the finding then
+    names it (``e.unfinished``: start, end, message).  A lone key counts as
+    unfinished when what follows closes the block, starts a later line or is
+    itself a key (``x =``); ``method hf`` alone is a missing ``=``, reported
+    at ``hf``."""
     import lark
 
     ip = getattr(e, "interactive_parser", None)
-    if not isinstance(e, lark.exceptions.UnexpectedToken) or ip is None or "EQUAL" not in e.expected:
+    if not isinstance(e, lark.exceptions.UnexpectedToken) or ip is None or e.token.start_pos is None:
         return
     state = ip.parser_state
-    if len(state.state_stack) < 2 or not state.value_stack:
+    values, token = state.value_stack, e.token
+
+    def top(n):  # the types of the last n values, when they are all tokens
+        last = values[-n:] if len(values) >= n else []
+        return [v.type for v in last] if last and all(isinstance(v, lark.Token) for v in last) else []
+
+    follows_key = token.type == "RBRACE" or body[token.end_pos :].lstrip().startswith("=")
+    if top(1) == ["NAME"] and "EQUAL" in e.expected and (follows_key or token.line > values[-1].line):
+        drop, refeed, typed_end = 1, [token], values[-1]       # `key` then `}` / `next = ...`
+        message = f"expected `=` and a value after `{values[-1]}`"
+    elif top(2) == ["NAME", "EQUAL"] and token.type == "RBRACE":
+        drop, refeed, typed_end = 2, [token], values[-1]       # `key =` then `}`
+        message = f"expected a value after `{values[-2]} =`"
+    elif top(3)[:2] == ["NAME", "EQUAL"] and token.type == "EQUAL" and _NAME_RE.match(str(values[-1])):
+        drop, refeed, typed_end = 3, [values[-1], token], values[-2]   # `key =` then `next = ...`
+        message = f"expected a value after `{values[-3]} =`"
+    else:
         return
-    key = state.value_stack[-1]
-    if not isinstance(key, lark.Token) or key.type != "NAME":
+    key = values[-drop]
+    item_start = state.parse_conf.parse_table.states[state.state_stack[-drop - 1]]
+    if "RBRACE" not in item_start:  # not where an item of a block starts
         return
-    before = state.parse_conf.parse_table.states[state.state_stack[-2]]
-    if "RBRACE" not in before:  # not where an item of a block starts
-        return
-    token = e.token
-    if token.start_pos is None or not (
-        token.type == "RBRACE" or token.line > key.line or body[token.end_pos :].lstrip().startswith("=")
-    ):
-        return
-    if token.type not in before:
-        if "NAME" not in before or not _NAME_RE.match(str(token)):
+    first = refeed[0]
+    if first.type not in item_start:
+        if "NAME" not in item_start or not _NAME_RE.match(str(first)):
             return
-        token = lark.Token.new_borrow_pos("NAME", str(token), token)
-    saved = (list(state.state_stack), list(state.value_stack))
-    state.state_stack.pop()
-    state.value_stack.pop()
+        refeed[0] = lark.Token.new_borrow_pos("NAME", str(first), first)
+    saved = (list(state.state_stack), list(values))
+    del state.state_stack[-drop:]
+    del values[-drop:]
     try:
-        ip.feed_token(token)
+        for t in refeed:
+            ip.feed_token(t)
     except lark.exceptions.UnexpectedInput:
-        state.state_stack[:], state.value_stack[:] = saved
+        state.state_stack[:], values[:] = saved
         return
-    e.dangling_key = key
+    e.unfinished = (key.start_pos, typed_end.end_pos, message)
 
 
 _NAME_RE = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
@@ -294,9 +309,9 @@ _NAME_RE = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
     import lark
 
-    key = getattr(e, "dangling_key", None)
-    if key is not None and key.start_pos is not None and key.start_pos < chunk_len:
-        return key.start_pos, min(key.end_pos, chunk_len), f"expected `=` and a value after `{key}`"
+    unfinished = getattr(e, "unfinished", None)
+    if unfinished is not None and unfinished[0] < chunk_len:
+        return unfinished[0], min(unfinished[1], chunk_len), unfinished[2]
 
     if isinstance(e, lark.exceptions.UnexpectedToken):
         tok = e.token

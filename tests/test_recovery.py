@@ -95,3 +95,27 @@ def test_a_real_missing_brace_before_a_statement_head_is_still_reported():
     assert found(text) == [
         ("syntax-error", 1, 13, "the geometry block opened on line 1 is not closed: expected `}` before `level` on line 5"),
     ]
+
+
+def test_equals_sign_typed_before_the_next_setting():
+    text = HEAD + "state radical {\n  geometry =\n  level = hf\n  charge = 0\n  multiplicity = 2\n}\n" + TAIL
+    # Not "no geometry is named `level`" nor a missing level.
+    assert found(text) == [("syntax-error", 7, 3, "expected a value after `geometry =`")]
+
+
+def test_equals_sign_typed_before_the_next_key_on_the_same_line():
+    text = HEAD + "state radical { geometry = cn  level =  charge = 0  multiplicity = 2 }\n" + TAIL
+    assert found(text) == [("syntax-error", 6, 32, "expected a value after `level =`")]
+
+
+def test_equals_sign_typed_before_the_closing_brace():
+    text = HEAD + "state radical { geometry = cn  level = hf  charge = 0  multiplicity = }\n" + TAIL
+    assert found(text) == [("syntax-error", 6, 56, "expected a value after `multiplicity =`")]
+
+
+def test_equals_sign_typed_at_the_end_of_an_unclosed_state():
+    text = HEAD + "state radical { geometry = cn  level = hf  charge = 0  multiplicity =\n" + TAIL
+    assert found(text) == [
+        ("syntax-error", 6, 15, "the state block opened on line 6 is not closed: expected `}` before `state` on line 7"),
+        ("syntax-error", 6, 56, "expected a value after `multiplicity =`"),
+    ]
