@@ -212,3 +212,13 @@ def test_the_extension_builds_as_a_vsix(tmp_path):
     # Only what runs in VS Code: no test scripts, no build-time packages.
     assert not any(n.startswith(("extension/test/", "extension/node_modules/vscode-textmate/",
                                  "extension/node_modules/@vscode/vsce/")) for n in names)
+
+
+@pytest.mark.skipif(NODE is None, reason="node is not installed (apt-get install nodejs); CI installs it")
+def test_the_client_is_valid_javascript_that_starts_deckward_serve():
+    proc = subprocess.run([NODE, "--check", os.path.join(VSCODE, "extension.js")], capture_output=True, text=True,
+                          timeout=60)
+    assert proc.returncode == 0, proc.stderr
+    with open(os.path.join(VSCODE, "extension.js"), encoding="utf-8") as f:
+        source = f.read()
+    assert 'require("vscode-languageclient/node")' in source and '["deckward", "serve"]' in source
