@@ -41,12 +41,14 @@ state anion { geometry = cn  level = hf_adzz  charge = -1  multiplicity = 1 }
 """
 
 
-def run_emacs(tmp_path, files, opened):
+def run_emacs(tmp_path, files, opened, second=None):
     work = tmp_path / "work"
     write_workspace(work, files)
     home = tmp_path / "home"
     home.mkdir()
     env = dict(os.environ, HOME=str(home), DECKWARD_LSP_CMD=json.dumps(SERVER_COMMAND), DECKWARD_EL_DIR=EL_DIR)
+    if second:
+        env["DECKWARD_SECOND_DECK"] = second
     proc = subprocess.run(
         [EMACS, "--batch", "-q", "-l", DRIVER, "--eval", f'(deck-test-run "{opened}")'],
         cwd=work, env=env, stdin=subprocess.DEVNULL, capture_output=True, text=True, timeout=120)
@@ -55,11 +57,14 @@ def run_emacs(tmp_path, files, opened):
 
 
 def test_eglot_receives_the_diagnostics(tmp_path):
-    work, result = run_emacs(tmp_path, {"decks/cn.deck": DECK}, "decks/cn.deck")
+    work, result = run_emacs(tmp_path, {"decks/cn.deck": DECK, "other/no2.deck": "use \"../decks/cn.deck\"\n"},
+                             "decks/cn.deck", second="other/no2.deck")
     assert result["mode"] == "deck-mode"
     assert result["managed"] is True
     # The folder holding deckward.yaml is the project, not decks/.
     assert os.path.realpath(result["root"]) == os.path.realpath(work)
+    # A second deck of the workspace joins the same server.
+    assert (result["servers"], result["same_server"]) == (1, True)
     got = [(d["line"], d["col"], d["end_col"], d["type"], d["text"]) for d in result["diagnostics"]]
     assert [(line, col, end, kind) for line, col, end, kind, _ in got] == [
         (6, 61, 71, "eglot-error"),
