@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import hashlib
 import os
-import re
 import tempfile
 from collections import OrderedDict
 from dataclasses import dataclass
@@ -277,7 +276,7 @@ def _drop_unfinished_setting(e, body: str) -> None:
     elif top(2) == ["NAME", "EQUAL"] and token.type == "RBRACE":
         drop, refeed, typed_end = 2, [token], values[-1]       # `key =` then `}`
         message = f"expected a value after `{values[-2]} =`"
-    elif top(3)[:2] == ["NAME", "EQUAL"] and token.type == "EQUAL" and _NAME_RE.match(str(values[-1])):
+    elif top(3)[:2] == ["NAME", "EQUAL"] and token.type == "EQUAL" and _is_name(str(values[-1])):
         drop, refeed, typed_end = 3, [values[-1], token], values[-2]   # `key =` then `next = ...`
         message = f"expected a value after `{values[-3]} =`"
     else:
@@ -288,7 +287,7 @@ def _drop_unfinished_setting(e, body: str) -> None:
         return
     first = refeed[0]
     if first.type not in item_start:
-        if "NAME" not in item_start or not _NAME_RE.match(str(first)):
+        if "NAME" not in item_start or not _is_name(str(first)):
             return
         refeed[0] = lark.Token.new_borrow_pos("NAME", str(first), first)
     saved = (list(state.state_stack), list(values))
@@ -303,7 +302,9 @@ def _drop_unfinished_setting(e, body: str) -> None:
     e.unfinished = (key.start_pos, typed_end.end_pos, message)
 
 
-_NAME_RE = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+def _is_name(text: str) -> bool:
+    """Whether ``text`` could be a NAME of deck.lark (an ASCII identifier)."""
+    return text.isascii() and text.isidentifier()
 
 
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
