@@ -26,8 +26,8 @@ def _has_eglot() -> bool:
     return probe.returncode == 0
 
 
-pytestmark = pytest.mark.skipif(not _has_eglot(), reason="emacs with eglot is not installed "
-                                "(apt-get install emacs-nox elpa-eglot, or Emacs 29); CI installs them")
+pytestmark = [pytest.mark.editor, pytest.mark.skipif(not _has_eglot(), reason="emacs with eglot is not installed "
+                                "(apt-get install emacs-nox elpa-eglot, or Emacs 29); CI installs them")]
 
 DECK = """\
 # The cyano radical and its anion, first pass.

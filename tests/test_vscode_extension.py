@@ -24,6 +24,8 @@ VSCODE = os.path.join(os.path.dirname(__file__), "..", "editors", "vscode")
 NODE = shutil.which("node")
 MODULES = os.path.join(VSCODE, "node_modules")
 
+pytestmark = pytest.mark.editor  # drives Node headless
+
 needs_node = pytest.mark.skipif(
     NODE is None or not os.path.isdir(os.path.join(MODULES, "vscode-textmate")),
     reason="node or the extension's npm packages are missing (apt-get install nodejs npm; "
