@@ -46,6 +46,14 @@ def kind_of(mode: int) -> str:
     return "not a regular file"
 
 
+def is_regular_file(path: str) -> bool:
+    """``path`` (after symbolic links) is a regular file; never raises."""
+    try:
+        return stat.S_ISREG(os.stat(path).st_mode)
+    except (OSError, ValueError):
+        return False
+
+
 def read_regular(path: str, limit: int = MAX_FILE_BYTES) -> bytes:
     """Up to ``limit + 1`` bytes of the regular file at ``path`` (a caller
     sees that the file is too large when more than ``limit`` come back).

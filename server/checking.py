@@ -75,18 +75,13 @@ def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] 
 
 
 def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = None) -> list[str]:
-    import stat
-
     from deckward.grammar.resolve import inside_root
+    from deckward.grammar.safe_open import is_regular_file
 
     kept = []
     real_root = os.path.realpath(root)
     for c in candidates:
-        try:
-            regular = stat.S_ISREG(os.stat(c).st_mode)
-        except (OSError, ValueError):
-            regular = True  # a dangling link or an unreadable entry: reading it reports why
-        if not regular:
+        if not is_regular_file(c):
             why = "it is not a regular file"
         elif not inside_root(os.path.realpath(c), real_root):
             why = "it is a link to a file outside the workspace"
