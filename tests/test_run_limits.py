@@ -152,6 +152,26 @@ def test_ctrl_c_with_worker_processes_prints_one_line_and_no_traceback(tmp_path)
     assert err.splitlines()[-1] == "deckward: interrupted"
 
 
+def test_a_worker_whose_command_stopped_ends_quietly(tmp_path):
+    """After Ctrl-C the command closes its end of the pipe; the worker
+    ignores SIGINT itself and must not raise BrokenPipeError (which
+    multiprocessing would print as a traceback)."""
+    import multiprocessing
+    from dataclasses import asdict
+
+    from deckward.rules.runner.parallel import _worker
+
+    plan = plan_state(workspace(tmp_path, H2), "mol")
+    receive, send = multiprocessing.Pipe(duplex=False)
+    receive.close()
+    saved = signal.getsignal(signal.SIGINT)
+    try:
+        _worker(asdict(plan), None, None, None, send)
+        assert signal.getsignal(signal.SIGINT) is signal.SIG_IGN
+    finally:
+        signal.signal(signal.SIGINT, saved)
+
+
 # -- the run cache -----------------------------------------------------------------
 
 def cached_entry(tmp_path, capsys):
