@@ -7,11 +7,14 @@ is not in it (``--check``) or could not be laid out; 2 usage errors.
 """
 from __future__ import annotations
 
+import os
 import sys
 
 from deckward.grammar.build import build_deck
 from deckward.grammar.wording import counted
 from deckward.grammar.formatter import format_text
+
+from deckward.grammar.resolve import inside_root
 
 from .atomic_write import WriteRefused, read_snapshot, write_atomically
 from .checking import UsageError, config_for, discover
@@ -27,7 +30,9 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     config = config_for(args.paths, None)
-    files = discover(args.paths, config)
+    skipped: list[str] = []
+    files = discover(args.paths, config, skipped)
+    sys.stderr.write("".join(n + "\n" for n in skipped))
     changed = unchanged = failed = 0
     for path in files:
         try:
@@ -56,6 +61,8 @@ def run(args) -> int:
             sys.stdout.write(f"{path}: not in the canonical layout\n")
             continue
         try:
+            if config.root and not inside_root(os.path.realpath(path), os.path.realpath(config.root)):
+                raise WriteRefused(f"it is a link to {os.path.realpath(path)}, outside the workspace {config.root}")
             write_atomically(snapshot, formatted.encode("utf-8"))
         except WriteRefused as e:
             sys.stderr.write(f"{path}: not written: {e}\n")

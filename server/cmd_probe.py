@@ -35,7 +35,7 @@ def run(args) -> int:
     loader = Loader()
     files, findings, notes = [], list(config.findings), []
     for given in args.paths:
-        for path in discover([given], config):
+        for path in discover([given], config, notes):
             files.append(path)
             try:
                 ws = resolve(path, loader, root_for(path, config, given))

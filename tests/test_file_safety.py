@@ -232,3 +232,17 @@ def test_stale_temporary_files_of_a_killed_writer_are_removed(tmp_path):
     write_atomically(read_snapshot(str(deck)), b"new\n")
     assert sorted(p.name for p in tmp_path.iterdir()) == sorted(["x.deck", young.name, alive.name, foreign.name])
     assert clean_stale_temporaries(str(tmp_path)) == []
+
+
+def test_format_never_writes_through_a_link_out_of_the_workspace(outside, capsys):
+    ws, target = outside
+    target.write_text("geometry   g {\n N 0 0 0\n}\n", encoding="utf-8")
+    before = target.read_bytes()
+    assert main(["format", str(ws)]) == 0
+    assert main(["format", str(ws / "linked.deck")]) == 1
+    out, err = capsys.readouterr()
+    assert target.read_bytes() == before
+    assert err.splitlines() == [
+        f"deckward: skipped {ws / 'linked.deck'}: it is a link to a file outside the workspace",
+        f"{ws / 'linked.deck'}: not written: it is a link to {target}, outside the workspace {ws}",
+    ]

@@ -152,6 +152,26 @@ def test_ctrl_c_with_worker_processes_prints_one_line_and_no_traceback(tmp_path)
     assert err.splitlines()[-1] == "deckward: interrupted"
 
 
+def test_a_worker_whose_command_stopped_ends_quietly(tmp_path):
+    """After Ctrl-C the command closes its end of the pipe; the worker
+    ignores SIGINT itself and must not raise BrokenPipeError (which
+    multiprocessing would print as a traceback)."""
+    import multiprocessing
+    from dataclasses import asdict
+
+    from deckward.rules.runner.parallel import _worker
+
+    plan = plan_state(workspace(tmp_path, H2), "mol")
+    receive, send = multiprocessing.Pipe(duplex=False)
+    receive.close()
+    saved = signal.getsignal(signal.SIGINT)
+    try:
+        _worker(asdict(plan), None, None, None, send)
+        assert signal.getsignal(signal.SIGINT) is signal.SIG_IGN
+    finally:
+        signal.signal(signal.SIGINT, saved)
+
+
 # -- the run cache -----------------------------------------------------------------
 
 def cached_entry(tmp_path, capsys):
@@ -268,3 +288,19 @@ def test_infinite_probe_bound_is_a_config_finding_not_a_crash(tmp_path):
     assert [(f.rule, f.span.line, f.message) for f in cfg.findings] == [
         ("invalid-config", 2, "`probe.max_basis_functions` must be a positive number, not infinite")]
     assert ProbeSettings.from_config(Config(probe={"max_basis_functions": float("inf")})).max_basis_functions > 10**6
+
+
+def test_a_ten_thousand_atom_deck_is_skipped_by_the_overlap_probe_without_building_it(tmp_path, monkeypatch):
+    from deckward.rules.runner import pyscf_build
+
+    def never(*a, **k):
+        raise AssertionError("the molecule must not be built to find that it is too large")
+
+    monkeypatch.setattr(pyscf_build, "build_mole", never)
+    atoms = "\n".join(f"  He {i * 3.0:.1f} 0 0" for i in range(10_000))
+    ws = workspace(tmp_path, f"geometry many {{\n{atoms}\n}}\n"
+                             "state s { geometry = many  method = hf  basis = sto-3g  multiplicity = 1 }\n")
+    found = run_probes(ws, Config(), RunCache(str(tmp_path / "c")), select={"probe-overlap-conditioning"})
+    assert [f.message for f in found] == [  # STO-3G He: one s function (Hehre, Stewart, Pople 1969)
+        "probe skipped: 10000 basis functions with sto-3g exceed probe.max_basis_functions = 300 "
+        "(raise it in deckward.yaml to probe anyway)"]
