@@ -119,7 +119,7 @@ class _Checker:
         digest = self.cache.digest(task.path)
         if digest is None:
             return None
-        return entry_key(task.path, task.root, digest, self.config_print, self.probe)
+        return entry_key(task.path, task.root, digest, self.config_print, self.probe, self.cache.real)
 
     def lookup(self, key: Optional[str]) -> Optional[list[Finding]]:
         return self.cache.get(key) if self.cache is not None and key is not None else None
