@@ -17,10 +17,9 @@ from typing import Callable, Optional
 from . import model as m
 from .build import build_deck, closest_names
 from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
+from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
 
-# A deck of 250,000 atoms fits; past this, parsing alone would take minutes.
-MAX_FILE_BYTES = 8 * 1024 * 1024
 # `use` chains deeper than this, or more files than this in one workspace,
 # are not loaded (a located finding says so): no real set-up comes near.
 MAX_USE_DEPTH = 64
@@ -85,8 +84,7 @@ class Loader:
         key = os.path.abspath(path)
         if key in self.overlay:
             return self.parse_text(path, self.overlay[key])
-        with open(path, "rb") as f:
-            data = f.read(MAX_FILE_BYTES + 1)
+        data = read_regular(path, MAX_FILE_BYTES)
         extra = None
         if len(data) > MAX_FILE_BYTES:
             data = data[:MAX_FILE_BYTES]
@@ -261,6 +259,11 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
         if use is None:
             stack.pop()
             continue
+        problem = path_problem(use.path.value)
+        if problem is not None:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{shown(use.path.value)}` cannot be read ({problem})", use.path.span))
+            continue
         target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
         real = os.path.realpath(target)
         where = use.path.span
@@ -293,7 +296,7 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
             continue
         except OSError as e:
             reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
-            findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{use.path.value}` {reason}", where))
+            findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{shown(use.path.value)}` {reason}", where))
             continue
         files.append(used)
         loaded.add(real)
@@ -406,6 +409,24 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
     findings.sort(key=Finding.sort_key)
     return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings),
                      frozenset(broken))
+
+
+def shown(text: str) -> str:
+    """``text`` fit for a message: control characters and lone surrogates
+    written as escapes, so a message can always be printed and encoded."""
+    out = []
+    for ch in text:
+        code = ord(ch)
+        if code < 0x20 or code == 0x7F or 0xD800 <= code <= 0xDFFF:
+            out.append(f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def inside_root(path: str, root: str) -> bool:
+    """``path`` lies in the folder ``root`` (both already resolved)."""
+    return _inside(path, root)
 
 
 def _inside(path: str, root: str) -> bool:

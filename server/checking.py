@@ -10,7 +10,7 @@ from dataclasses import dataclass, field
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Severity
-from deckward.grammar.resolve import Loader, resolve
+from deckward.grammar.resolve import Loader, resolve, shown
 from deckward.rules.config import Config, find_config, load_config
 from deckward.rules.engine import check_workspace, dedupe, known_rule_ids
 
@@ -45,9 +45,13 @@ class CheckResult:
         return c
 
 
-def discover(paths: Iterable[str], config: Config) -> list[str]:
+def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] = None) -> list[str]:
     """Deck files named or found below the given paths, in a stable order.
-    Raises UsageError for a path that does not exist."""
+    Raises UsageError for a path that does not exist.  Found below a
+    folder, only regular files inside the workspace count: a FIFO or device
+    named ``*.deck`` would hang the reader, and a link out of the workspace
+    would read (and let ``--fix`` write) a file that is not the project's;
+    each one skipped adds a note to ``skipped``."""
     out: list[str] = []
     seen: set[str] = set()
     for p in paths:
@@ -59,6 +63,7 @@ def discover(paths: Iterable[str], config: Config) -> list[str]:
                 dirs[:] = sorted(d for d in dirs if not d.startswith("."))
                 candidates.extend(os.path.join(folder, f) for f in sorted(files) if f.endswith(".deck"))
             candidates = [c for c in candidates if not config.is_excluded(c)]
+            candidates = confined(candidates, root_for(p, config, p), skipped)
         elif os.path.exists(p):
             raise UsageError(f"{p}: not a file or folder")
         else:
@@ -69,6 +74,25 @@ def discover(paths: Iterable[str], config: Config) -> list[str]:
                 seen.add(key)
                 out.append(os.path.normpath(c))
     return out
+
+
+def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = None) -> list[str]:
+    from deckward.grammar.resolve import inside_root
+    from deckward.grammar.safe_open import is_regular_file
+
+    kept = []
+    real_root = os.path.realpath(root)
+    for c in candidates:
+        if not is_regular_file(c):
+            why = "it is not a regular file"
+        elif not inside_root(os.path.realpath(c), real_root):
+            why = "it is a link to a file outside the workspace"
+        else:
+            kept.append(c)
+            continue
+        if skipped is not None:
+            skipped.append(f"deckward: skipped {shown(os.path.normpath(c))}: {why}")
+    return kept
 
 
 def config_for(paths: list[str], explicit: Optional[str]) -> Config:
@@ -109,8 +133,9 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
     tasks = []
+    skipped: list[str] = []
     for given in paths:
-        for path in discover([given], config):
+        for path in discover([given], config, skipped):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
     if (loader is not None and loader.overlay) or len(tasks) < cache_from:
@@ -134,7 +159,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
 
                 extra = run_probes(ws, config)
             findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
-        return CheckResult(files, dedupe(findings), config)
+        return CheckResult(files, dedupe(findings), config, notes=skipped)
 
     from .parallel_check import DeckUnreadable, Task, check_tasks
 
@@ -144,7 +169,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     except DeckUnreadable as e:
         raise UsageError(str(e))
     findings.extend(found)
-    return CheckResult(files, dedupe(findings), config, notes=list(stats.notes), stats=stats)
+    return CheckResult(files, dedupe(findings), config, notes=skipped + list(stats.notes), stats=stats)
 
 
 def release_unshared(loader: Loader, ws, shared: set[str]) -> None:

@@ -57,6 +57,7 @@ def build_parser(only: Optional[str] = None) -> argparse.ArgumentParser:
 def main(argv=None) -> int:
     from .checking import UsageError
 
+    _never_fail_to_print()
     argv = list(sys.argv[1:] if argv is None else argv)
     # The first word names the command (no option comes before it); anything
     # else (--help, --version, a typo) gets the whole parser and its message.
@@ -84,6 +85,17 @@ def main(argv=None) -> int:
             raise
         sys.stderr.write(f"deckward: internal error: {type(e).__name__}: {e} (set DECKWARD_DEBUG=1 for details)\n")
         return 3
+
+
+def _never_fail_to_print() -> None:
+    """A file name that is not UTF-8 (or any odd character) must not turn a
+    report into an encoding error: a strict output stream escapes instead."""
+    for stream in (sys.stdout, sys.stderr):
+        if getattr(stream, "errors", None) == "strict" and hasattr(stream, "reconfigure"):
+            try:
+                stream.reconfigure(errors="backslashreplace")
+            except (ValueError, OSError):
+                pass
 
 
 if __name__ == "__main__":

@@ -2,14 +2,15 @@
 
 Formatting never changes what a deck means (``deckward.grammar.formatter``);
 a file with syntax errors is left untouched and reported.  Exit status: 0 all
-files formatted (or, with ``--check``, already formatted); 1 some file would
-be reformatted (``--check``) or could not be formatted; 2 usage errors.
+files are in the canonical layout (``--check``) or were laid out; 1 some file
+is not in it (``--check``) or could not be laid out; 2 usage errors.
 """
 from __future__ import annotations
 
 import sys
 
 from deckward.grammar.build import build_deck
+from deckward.grammar.wording import counted
 from deckward.grammar.formatter import format_text
 
 from .atomic_write import WriteRefused, read_snapshot, write_atomically
@@ -52,7 +53,7 @@ def run(args) -> int:
             continue
         changed += 1
         if args.check:
-            sys.stdout.write(f"would reformat {path}\n")
+            sys.stdout.write(f"{path}: not in the canonical layout\n")
             continue
         try:
             write_atomically(snapshot, formatted.encode("utf-8"))
@@ -61,10 +62,17 @@ def run(args) -> int:
             failed += 1
             changed -= 1
             continue
-        sys.stdout.write(f"reformatted {path}\n")
-    verb = "would be reformatted" if args.check else "reformatted"
-    sys.stdout.write(f"{changed} file{'s' * (changed != 1)} {verb}, {unchanged} unchanged"
-                     + (f", {failed} not formatted" if failed else "") + "\n")
+        sys.stdout.write(f"{path}: laid out anew\n")
+    sys.stdout.write(_summary(changed, unchanged, failed, args.check) + "\n")
     if failed or (args.check and changed):
         return 1
     return 0
+
+
+def _summary(changed: int, unchanged: int, failed: int, check: bool) -> str:
+    """"2 files to lay out, 5 already canonical" (--check) or "2 files laid out anew, ..."."""
+    parts = [f"{counted(changed, 'file')} {'to lay out' if check else 'laid out anew'}",
+             f"{unchanged} already canonical"]
+    if failed:
+        parts.append(f"{failed} left as they were (see above)")
+    return ", ".join(parts)

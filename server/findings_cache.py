@@ -204,9 +204,10 @@ def entry_problem(entry: Any, key: str) -> Optional[str]:
 def file_digest(path: str) -> Optional[str]:
     """sha256 of a file's bytes; None when it does not exist or cannot be
     read (the deck's findings then say so, and the entry remembers it)."""
+    from deckward.grammar.safe_open import read_regular  # never blocks on a FIFO; NUL paths are OSError
+
     try:
-        with open(path, "rb") as f:
-            return hashlib.sha256(f.read()).hexdigest()
+        return hashlib.sha256(read_regular(path)).hexdigest()
     except OSError:
         return None
 
@@ -328,7 +329,10 @@ class FindingsCache:
         counted and otherwise ignored (checking must not fail because of it)."""
         import tempfile  # only a run that writes entries pays for it
 
-        dep_rows = [[d, self.real(d), self.digest(d)] for d in deps]
+        try:
+            dep_rows = [[d, self.real(d), self.digest(d)] for d in deps]
+        except (OSError, ValueError):  # a `use` path no file can have (a NUL byte): not cacheable
+            return
         rows = [finding_to_dict(f) for f in findings]
         # Round-trip through JSON first, so that the checksum covers exactly what a reader decodes.
         dep_rows, rows = json.loads(json.dumps([dep_rows, rows], ensure_ascii=False))

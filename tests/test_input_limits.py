@@ -28,7 +28,7 @@ def test_a_thousand_unary_minus_signs_are_a_located_finding(tmp_path, capsys):
     out = capsys.readouterr()
     assert out.err == (f"{deck}:1:12: the expression is nested more than 200 levels deep "
                        "(not formatted: fix the syntax error first)\n")
-    assert out.out == "0 files reformatted, 0 unchanged, 1 not formatted\n"
+    assert out.out == "0 files laid out anew, 0 already canonical, 1 left as they were (see above)\n"
     assert deck.read_text() == NEGATED
 
 

@@ -12,6 +12,8 @@ import pytest
 
 from lsp_support import SERVER_COMMAND, write_workspace
 
+pytestmark = pytest.mark.editor  # drives an installed program headless
+
 NVIM = shutil.which("nvim")
 
 DECK = """\

@@ -11,7 +11,7 @@ import pytest
 from deck_batch import DECKS, write_batch
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 from deckward.server import findings_cache
-from deckward.server.checking import UsageError, check_paths
+from deckward.server.checking import check_paths
 from deckward.server.cli import main
 from deckward.server.findings_cache import FindingsCache, finding_from_dict, finding_to_dict
 from deckward.server.parallel_check import IN_PROCESS_BELOW
@@ -141,15 +141,14 @@ def test_cli_cache_options(tmp_path, monkeypatch, capsys):
         assert message in capsys.readouterr().err
 
 
-def test_unreadable_deck_is_a_usage_error_whatever_jobs(big_batch):
+def test_unreadable_deck_is_skipped_alike_whatever_jobs(big_batch):
     os.symlink(os.path.join(big_batch, "gone"), os.path.join(big_batch, "g5", "dangling.deck"))
-    messages = []
-    for jobs in (1, 2):
-        with pytest.raises(UsageError) as e:
-            check_paths([big_batch], jobs=jobs, cache_dir=None if jobs == 1 else os.path.join(big_batch, ".c"))
-        messages.append(str(e.value))
-    assert messages[0] == messages[1]
-    assert messages[0].endswith("dangling.deck: cannot be read (No such file or directory)")
+    results = [check_paths([big_batch], jobs=jobs, cache_dir=None if jobs == 1 else os.path.join(big_batch, ".c"))
+               for jobs in (1, 2)]
+    assert results[0].files == results[1].files and results[0].findings == results[1].findings
+    skipped = [[n for n in r.notes if "dangling.deck" in n] for r in results]
+    assert skipped[0] == skipped[1] and len(skipped[0]) == 1
+    assert skipped[0][0].endswith("dangling.deck: it is not a regular file")
 
 
 def test_findings_round_trip_through_the_cache_format():
