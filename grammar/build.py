@@ -7,7 +7,6 @@ a message that names the alternatives (``unknown-key``, ``invalid-value``,
 """
 from __future__ import annotations
 
-import difflib
 import re
 from typing import Callable, Optional
 
@@ -74,6 +73,8 @@ def closest_names(word: str, candidates, n: int = 1) -> list[str]:
     scored.sort(key=lambda t: t[0])
     out = [c for _, c in scored]
     if len(out) < n and len(cands) <= MAX_FUZZY_CANDIDATES:
+        import difflib  # only a did-you-mean that edit distance did not answer pays for it
+
         lowered = {c.lower(): c for c in cands}
         for m in difflib.get_close_matches(low, list(lowered), n=n, cutoff=0.6):
             if lowered[m] not in out:

@@ -96,6 +96,16 @@ def _recalled(store: dict, key, geometry):
     return hit if hit is not None and hit[0] is geometry else None
 
 
+def per_geometry(store: dict, geometry, compute):
+    """``compute(geometry)``, remembered in ``store`` for the last few
+    geometries (by identity: the model is immutable, and several rules ask
+    the same question about the same geometry in turn)."""
+    hit = _recalled(store, id(geometry), geometry)
+    if hit is not None:
+        return hit[1]
+    return _remember(store, id(geometry), geometry, compute(geometry))
+
+
 def sites(geometry: m.Geometry, include_ghosts: bool = True) -> list[Site]:
     """Atoms with a known element and radius, coordinates in angstrom.
     Atoms with an unknown symbol are left out (unknown-element reports them),
@@ -341,10 +351,7 @@ def units_verdict(geometry: m.Geometry) -> Optional[UnitsVerdict]:
     ordinary bond as declared, or a neighbour too close even when re-read),
     so an ordinary geometry costs about one atom's neighbourhood.  Verdicts
     of the last few geometries are remembered: three rules ask."""
-    hit = _recalled(_VERDICTS, id(geometry), geometry)
-    if hit is not None:
-        return hit[1]
-    return _remember(_VERDICTS, id(geometry), geometry, _units_verdict(geometry))
+    return per_geometry(_VERDICTS, geometry, _units_verdict)
 
 
 def _units_verdict(geometry: m.Geometry) -> Optional[UnitsVerdict]:
