@@ -280,10 +280,13 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
             i = parent[i]
         return i
 
+    left = [n]  # fragments left: once one is left, nothing more can join
+
     def join(a: int, b: int) -> None:
         a, b = root(a), root(b)
         if a != b:
             parent[max(a, b)] = min(a, b)
+            left[0] -= 1
 
     at_point: dict[tuple[float, float, float], int] = {}
     for i, s in enumerate(items):
@@ -293,7 +296,8 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
             if s.radius > items[first].radius:
                 at_point[s.xyz] = i
     searched = list(at_point.values())
-    if len(searched) > 1:
+
+    def link() -> None:
         reps = [items[i] for i in searched]
         grid = _Grid(reps, tolerance * 2 * max(s.radius for s in reps))
         dist = math.dist
@@ -303,6 +307,9 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                 there = here if dx == dy == dz == 0 else grid.cells.get((kx + dx, ky + dy, kz + dz))
                 if not there:
                     continue
+                first = root(searched[here[0]])
+                if all(root(searched[c]) == first for c in here) and all(root(searched[c]) == first for c in there):
+                    continue  # both cells are one fragment already: nothing to measure (a dense pile)
                 for pos, a in enumerate(here):
                     s, i = reps[a], searched[a]
                     for b in (here[pos + 1 :] if there is here else there):
@@ -312,6 +319,11 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                         t = reps[b]
                         if dist(s.xyz, t.xyz) <= tolerance * (s.radius + t.radius):
                             join(i, j)
+                            if left[0] == 1:
+                                return
+
+    if len(searched) > 1 and left[0] > 1:
+        link()
     groups: dict[int, list[Site]] = {}
     for i, s in enumerate(items):
         groups.setdefault(root(i), []).append(s)
