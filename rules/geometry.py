@@ -297,6 +297,11 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                 at_point[s.xyz] = i
     searched = list(at_point.values())
 
+    def one_fragment(cell: list[int]):
+        """The fragment every atom of ``cell`` is in, or None if they are in several."""
+        first = root(searched[cell[0]])
+        return first if all(root(searched[c]) == first for c in cell) else None
+
     def link() -> None:
         reps = [items[i] for i in searched]
         grid = _Grid(reps, tolerance * 2 * max(s.radius for s in reps))
@@ -307,11 +312,14 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                 there = here if dx == dy == dz == 0 else grid.cells.get((kx + dx, ky + dy, kz + dz))
                 if not there:
                     continue
-                first = root(searched[here[0]])
-                if all(root(searched[c]) == first for c in here) and all(root(searched[c]) == first for c in there):
+                common = one_fragment(there)
+                if common is not None and one_fragment(here) == common:
                     continue  # both cells are one fragment already: nothing to measure (a dense pile)
                 for pos, a in enumerate(here):
                     s, i = reps[a], searched[a]
+                    if common is not None and root(i) == common:
+                        continue  # every atom over there is in this atom's fragment already
+                    joined = False
                     for b in (here[pos + 1 :] if there is here else there):
                         j = searched[b]
                         if root(i) == root(j):
@@ -319,8 +327,11 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                         t = reps[b]
                         if dist(s.xyz, t.xyz) <= tolerance * (s.radius + t.radius):
                             join(i, j)
+                            joined = True
                             if left[0] == 1:
                                 return
+                    if joined:
+                        common = one_fragment(there)
 
     if len(searched) > 1 and left[0] > 1:
         link()
