@@ -4,12 +4,20 @@ Prints, for a few thousand generated decks:
   - parse + resolve (deckward's model) / bare Lark parse of the same texts
   - full check (all static rules) / bare Lark parse
 and the cold start of `deckward check one.deck` as a ratio to `python -c pass`.
+
+Every ratio is given twice: by wall time and by CPU time.  On a shared
+machine the CPU-time ratio is the steadier one (other processes stretch wall
+time, not the CPU time this work needs).  The cold start is measured with
+the sources compiled to bytecode first, as an installed package has them
+(an environment with PYTHONDONTWRITEBYTECODE=1 would otherwise compile every
+module on every start).
 Usage: python bench/parse_check.py [--decks N]
 """
 from __future__ import annotations
 
 import argparse
 import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -20,10 +28,28 @@ sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from deck_generator import write_decks  # noqa: E402
 
 
-def timed(fn) -> float:
-    t = time.perf_counter()
+def timed(fn) -> tuple[float, float]:
+    """(wall seconds, CPU seconds of this process) of ``fn()``."""
+    t, c = time.perf_counter(), time.process_time()
     fn()
-    return time.perf_counter() - t
+    return time.perf_counter() - t, time.process_time() - c
+
+
+def child_cpu() -> float:
+    r = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return r.ru_utime + r.ru_stime
+
+
+def timed_run(cmd, env=None) -> tuple[float, float]:
+    """(wall seconds, CPU seconds) of one subprocess."""
+    t, c = time.perf_counter(), child_cpu()
+    subprocess.run(cmd, check=True, capture_output=True, env=env)
+    return time.perf_counter() - t, child_cpu() - c
+
+
+def ratio_line(label: str, value: tuple[float, float], base: tuple[float, float]) -> str:
+    return (f"{label:38s} {value[0]:8.2f} s wall ({value[0] / base[0]:.2f} x), "
+            f"{value[1]:8.2f} s CPU ({value[1] / base[1]:.2f} x)")
 
 
 def main() -> None:
@@ -35,7 +61,9 @@ def main() -> None:
     from deckward.grammar.parser import clear_parse_cache, get_parser
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.engine import check_workspace
+    from deckward.rules.config import Config
     from deckward.rules.registry import all_rules
+    from deckward.server.checking import check_paths
 
     folder = tempfile.mkdtemp(prefix="deckward-bench-")
     paths = write_decks(folder, args.decks)
@@ -51,32 +79,37 @@ def main() -> None:
                 clear_parse_cache()
             resolve(p, Loader(), folder)
 
-    def full(cold: bool):
-        loader = Loader()
+    def full_cold():
         for p in paths:
-            if cold:
-                clear_parse_cache()
-            check_workspace(resolve(p, loader, folder))
+            clear_parse_cache()
+            check_workspace(resolve(p, Loader(), folder))
+
+    def full_run():  # one `deckward check FOLDER --jobs 1` without the cache, as the command runs it
+        check_paths([folder], config=Config(), jobs=1)
 
     model_cold = timed(lambda: model(True))
-    checked_cold = timed(lambda: full(True))
+    checked_cold = timed(full_cold)
     clear_parse_cache()
-    checked_warm = timed(lambda: full(False))
-    print(f"{args.decks} decks, {sum(map(len, texts)) / 1e6:.2f} MB")
-    print(f"bare Lark parse:                     {bare:8.2f} s  (1.00)")
-    print(f"parse + resolve (model), cold:       {model_cold:8.2f} s  ({model_cold / bare:.2f} x bare parse)")
-    print(f"full check (all rules), cold:        {checked_cold:8.2f} s  ({checked_cold / bare:.2f} x bare parse)")
-    print(f"full check, statement parses shared: {checked_warm:8.2f} s  ({checked_warm / bare:.2f} x bare parse)")
-    print("(cold: the remembered statement parses are cleared before every deck; shared: identical "
-          "statements across decks are parsed once, as in one `deckward check` run)")
+    checked_warm = timed(full_run)
+    print(f"{args.decks} decks, {sum(map(len, texts)) / 1e6:.2f} MB; load average {os.getloadavg()[0]:.1f}")
+    print(ratio_line("bare Lark parse:", bare, bare))
+    print(ratio_line("parse + resolve (model), cold:", model_cold, bare))
+    print(ratio_line("full check (all rules), cold:", checked_cold, bare))
+    print(ratio_line("full check as one `check` run:", checked_warm, bare))
+    print("(cold: the remembered statement parses are cleared before every deck; one run: identical "
+          "statements across decks are parsed once, as `deckward check FOLDER --jobs 1` does)")
 
     one = paths[0]
-    py = [timed(lambda: subprocess.run([sys.executable, "-c", "pass"], check=True)) for _ in range(args.starts)]
-    dw = [timed(lambda: subprocess.run([sys.executable, "-m", "deckward", "check", one, "--no-cache", "--fail-on", "never"],
-                                       check=True, capture_output=True)) for _ in range(args.starts)]
-    p, d = statistics.median(py), statistics.median(dw)
-    print(f"cold start `deckward check one.deck`: {d * 1000:.0f} ms median; python -c pass: {p * 1000:.0f} ms; "
-          f"ratio {d / p:.1f}")
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+    check = [sys.executable, "-m", "deckward", "check", one, "--fail-on", "never"]
+    subprocess.run(check, check=True, capture_output=True, env=env)  # write the bytecode once
+    py = [timed_run([sys.executable, "-c", "pass"], env) for _ in range(args.starts)]
+    dw = [timed_run(check, env) for _ in range(args.starts)]
+    p = (statistics.median(x[0] for x in py), statistics.median(x[1] for x in py))
+    d = (statistics.median(x[0] for x in dw), statistics.median(x[1] for x in dw))
+    print(f"cold start `deckward check one.deck`: {d[0] * 1000:.0f} ms wall, {d[1] * 1000:.0f} ms CPU (median); "
+          f"python -c pass: {p[0] * 1000:.0f} ms wall, {p[1] * 1000:.0f} ms CPU; "
+          f"ratio {d[0] / p[0]:.1f} wall, {d[1] / p[1]:.1f} CPU")
 
 
 if __name__ == "__main__":

@@ -12,12 +12,17 @@ and measures in one run:
 
 Each check time is printed as a ratio to the bare-parse time, and every
 check's findings are compared with the --jobs 1 run (they must be equal).
+On a shared machine wall-time speed-ups say more about the neighbours than
+about --jobs, so the speed-up is also estimated from CPU times: the --jobs 1
+CPU time over the parent's CPU time plus half the workers' (what two free
+cores would take, with the work split evenly).
 Usage: python bench/repo_scale.py [--decks N]
 """
 from __future__ import annotations
 
 import argparse
 import os
+import resource
 import shutil
 import sys
 import tempfile
@@ -72,6 +77,12 @@ def timed(fn):
     return time.perf_counter() - t, value
 
 
+def cpu_times() -> tuple[float, float]:
+    """CPU seconds of this process and of its finished children."""
+    me, kids = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
+    return me.ru_utime + me.ru_stime, kids.ru_utime + kids.ru_stime
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--decks", type=int, default=5000)
@@ -98,8 +109,13 @@ def main() -> None:
                     lark_parser.parse(f.read())
 
         t_parse, _ = timed(bare)
+        c0 = cpu_times()
         t_j1, r_j1 = timed(lambda: check_paths([repo], config=config, jobs=1))
+        c1 = cpu_times()
         t_j2, r_j2 = timed(lambda: check_paths([repo], config=config, jobs=2))
+        c2 = cpu_times()
+        cpu_j1 = c1[0] - c0[0]
+        cpu_parent, cpu_workers = c2[0] - c1[0], c2[1] - c1[1]
         t_cold, r_cold = timed(lambda: check_paths([repo], config=config, jobs=0, cache_dir=cache))
         t_warm, r_warm = timed(lambda: check_paths([repo], config=config, jobs=0, cache_dir=cache))
         with open(paths[0], "a", encoding="utf-8") as f:
@@ -113,7 +129,8 @@ def main() -> None:
                 sys.exit(f"findings of the {name} check differ from --jobs 1")
         s_warm, s_one = r_warm.stats, r_one.stats
 
-        print(f"{len(r_j1.files)} deck files ({len(r_j1.findings)} findings), {default_jobs()} cores")
+        print(f"{len(r_j1.files)} deck files ({len(r_j1.findings)} findings), {default_jobs()} cores, "
+              f"load average {os.getloadavg()[0]:.1f}")
         print(f"bare parse (read + Lark), 1 process:   {t_parse:7.2f} s  (1.00)")
         print(f"cold check, default jobs, empty cache: {t_cold:7.2f} s  ({t_cold / t_parse:.2f} x bare parse)")
         print(f"warm check, cache:                     {t_warm:7.2f} s  ({t_warm / t_parse:.3f} x bare parse; "
@@ -122,7 +139,10 @@ def main() -> None:
               f"{s_one.cache_hits} hits, {s_one.checked} checked)")
         print(f"--jobs 1, no cache:                    {t_j1:7.2f} s  ({t_j1 / t_parse:.2f} x bare parse)")
         print(f"--jobs 2, no cache:                    {t_j2:7.2f} s  ({t_j2 / t_parse:.2f} x bare parse)")
-        print(f"speed-up --jobs 2 against --jobs 1:    {t_j1 / t_j2:.2f}")
+        print(f"warm check / cold check:               {t_warm / t_cold:.3f}")
+        print(f"speed-up --jobs 2 against --jobs 1:    {t_j1 / t_j2:.2f} wall; "
+              f"{cpu_j1 / (cpu_parent + cpu_workers / 2):.2f} estimated from CPU times "
+              f"({cpu_j1:.2f} s for --jobs 1; {cpu_parent:.2f} s parent + {cpu_workers:.2f} s workers for --jobs 2)")
         print("findings identical in every run: yes")
     finally:
         shutil.rmtree(folder, ignore_errors=True)

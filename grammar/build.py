@@ -7,7 +7,6 @@ a message that names the alternatives (``unknown-key``, ``invalid-value``,
 """
 from __future__ import annotations
 
-import difflib
 import re
 from typing import Callable, Optional
 
@@ -18,6 +17,7 @@ from .parser import ParseOutput, parse_text
 from .text_index import LineIndex
 
 MAX_EXPRESSION_DEPTH = 200
+MAX_ATOMS_PER_GEOMETRY = 200_000  # twice the largest geometry the benchmarks check
 _ORBITAL_RE = re.compile(r"^(homo|lumo)(?:\s*([+-])\s*(\d+))?$", re.IGNORECASE)
 _NAME_RE = re.compile(r"^[A-Za-z_][A-Za-z0-9_]*$")
 
@@ -31,10 +31,15 @@ KEYS = {
 }
 
 
-def edit_distance(a: str, b: str) -> int:
-    """Levenshtein distance with transpositions (optimal string alignment)."""
+def edit_distance(a: str, b: str, limit: Optional[int] = None) -> int:
+    """Levenshtein distance with transpositions (optimal string alignment).
+    With ``limit``, any distance above it comes back as ``limit + 1`` as
+    soon as a row shows it (a did-you-mean over thousands of names must
+    not compute every distance in full)."""
     if a == b:
         return 0
+    if limit is not None and abs(len(a) - len(b)) > limit:
+        return limit + 1
     prev2: list[int] = []
     prev = list(range(len(b) + 1))
     for i, ca in enumerate(a, 1):
@@ -43,8 +48,15 @@ def edit_distance(a: str, b: str) -> int:
             cur[j] = min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (ca != cb))
             if i > 1 and j > 1 and ca == b[j - 2] and a[i - 2] == cb:
                 cur[j] = min(cur[j], prev2[j - 2] + 1)
+        if limit is not None and min(cur) > limit and min(prev) > limit:
+            return limit + 1  # every later row is at least the smaller of these two
         prev2, prev = prev, cur
-    return prev[-1]
+    return prev[-1] if limit is None else min(prev[-1], limit + 1)
+
+
+# Above this many candidates the similarity search of difflib is skipped: the
+# edit-distance search alone keeps a did-you-mean cheap.
+MAX_FUZZY_CANDIDATES = 1000
 
 
 def closest_names(word: str, candidates, n: int = 1) -> list[str]:
@@ -52,14 +64,17 @@ def closest_names(word: str, candidates, n: int = 1) -> list[str]:
     names like `cm` -> `cn` are found), then difflib's similarity."""
     cands = list(dict.fromkeys(candidates))
     low = word.lower()
+    limit = max(1, len(word) // 3)
     scored = []
     for c in cands:
-        d = edit_distance(low, c.lower())
-        if d <= max(1, len(word) // 3):
+        d = edit_distance(low, c.lower(), limit)
+        if d <= limit:
             scored.append((d, c))
     scored.sort(key=lambda t: t[0])
     out = [c for _, c in scored]
-    if len(out) < n:
+    if len(out) < n and len(cands) <= MAX_FUZZY_CANDIDATES:
+        import difflib  # only a did-you-mean that edit distance did not answer pays for it
+
         lowered = {c.lower(): c for c in cands}
         for m in difflib.get_close_matches(low, list(lowered), n=n, cutoff=0.6):
             if lowered[m] not in out:
@@ -306,6 +321,10 @@ class _Builder:
         for item in items:
             if getattr(item, "data", None) != "atom":
                 continue
+            if len(atoms) >= MAX_ATOMS_PER_GEOMETRY:
+                self.error("syntax-error", sp(item), f"geometry `{name_tok}` has more than {MAX_ATOMS_PER_GEOMETRY} "
+                           "atoms; this one and the rest are not read")
+                break
             sym, x, y, z, *ghost = item.children
             xyz = self.numbers((x, y, z), sp, "a coordinate", MAX_COORDINATE)
             if xyz is None:
@@ -422,7 +441,7 @@ class _Builder:
                     sp(u),
                     f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})" + did_you_mean(low, m.ENERGY_UNITS),
                 )
-        if _depth(expr_tree) > MAX_EXPRESSION_DEPTH:
+        if expression_depth(expr_tree) > MAX_EXPRESSION_DEPTH:
             self.error("syntax-error", sp(expr_tree), f"the expression is nested more than {MAX_EXPRESSION_DEPTH} levels deep")
             return None
         expr = self.expr(expr_tree, sp)
@@ -485,14 +504,15 @@ class _Builder:
         return None
 
 
-def _depth(tree) -> int:
-    """Nesting depth of a tree, computed without recursion."""
+def expression_depth(tree, stop: int = MAX_EXPRESSION_DEPTH) -> int:
+    """Nesting depth of a tree, computed without recursion (it stops
+    counting as soon as the depth passes ``stop``)."""
     best = 0
     stack = [(tree, 1)]
     while stack:
         node, d = stack.pop()
         best = max(best, d)
-        if best > MAX_EXPRESSION_DEPTH:
+        if best > stop:
             return best
         for c in getattr(node, "children", ()):
             if hasattr(c, "children"):

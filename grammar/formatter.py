@@ -29,6 +29,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Optional
 
+from .build import MAX_EXPRESSION_DEPTH, expression_depth
 from .parser import parse_text
 from .text_index import LineIndex
 
@@ -57,10 +58,15 @@ class _Line:
 
 
 def format_text(text: str) -> Optional[str]:
-    """The canonical layout of ``text``, or None when it has syntax errors."""
+    """The canonical layout of ``text``, or None when it has syntax errors
+    (an expression nested past ``MAX_EXPRESSION_DEPTH`` counts as one: the
+    model builder reports it, and laying it out would recurse that deep)."""
     index = LineIndex(text, "")
     out = parse_text(text, index)
     if out.findings or out.broken:
+        return None
+    # A statement's tree is one level above its expression.
+    if any(expression_depth(st.tree, MAX_EXPRESSION_DEPTH + 1) > MAX_EXPRESSION_DEPTH + 1 for st in out.statements):
         return None
     bom = "\ufeff" if text.startswith("\ufeff") else ""
     newline = "\r\n" if "\r\n" in text[: text.find("\n") + 1 or len(text)] else "\n"

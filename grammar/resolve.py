@@ -15,10 +15,17 @@ from dataclasses import dataclass, field
 from typing import Callable, Optional
 
 from . import model as m
-from .build import build_deck, closest_names, did_you_mean
+from .build import build_deck, closest_names
 from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
+
+# `use` chains deeper than this, or more files than this in one workspace,
+# are not loaded (a located finding says so): no real set-up comes near.
+MAX_USE_DEPTH = 64
+MAX_USE_FILES = 1000
+MAX_NAMES_PER_FILE = 10_000  # definitions read from one file
+MAX_SUGGESTIONS = 100  # undefined names of one workspace that get a did-you-mean
 
 
 @dataclass(frozen=True)
@@ -242,48 +249,72 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
     files: list[ParsedFile] = [root]
 
     # -- load use files (depth first, each once) -----------------------------
-    def visit(pf: ParsedFile, stack: tuple[str, ...]) -> None:
-        for use in pf.deck.uses:
-            problem = path_problem(use.path.value)
-            if problem is not None:
-                findings.append(Finding("use-outside-workspace", Severity.ERROR,
-                                        f"`{shown(use.path.value)}` cannot be read ({problem})", use.path.span))
-                continue
-            target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
-            real = os.path.realpath(target)
-            where = use.path.span
-            if not _inside(real, root_dir):
-                findings.append(Finding("use-outside-workspace", Severity.ERROR,
-                                        f"`{use.path.value}` is outside the workspace root {_short(root_dir)}", where))
-                continue
-            if real in stack:
-                chain = " -> ".join(os.path.basename(p) for p in stack[stack.index(real):] + (real,))
-                findings.append(Finding("use-outside-workspace", Severity.ERROR,
-                                        f"`{use.path.value}` forms a cycle of use: {chain}", where))
-                continue
-            if any(os.path.realpath(f.path) == real for f in files):
-                continue
-            try:
-                used = loader.load(target)
-            except IsADirectoryError:
-                findings.append(Finding("use-outside-workspace", Severity.ERROR,
-                                        f"`{use.path.value}` is a folder, not a deck file", where))
-                continue
-            except OSError as e:
-                reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
-                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{shown(use.path.value)}` {reason}", where))
-                continue
-            files.append(used)
-            findings.extend(used.findings)
-            visit(used, stack + (real,))
-
-    visit(root, (os.path.realpath(root.path),))
+    # An explicit stack, not recursion: a chain of thousands of files must
+    # not exhaust Python's stack (it ends at MAX_USE_DEPTH with a finding).
+    stack = [(root, iter(root.deck.uses), (os.path.realpath(root.path),))]
+    loaded = {os.path.realpath(root.path)}
+    while stack:
+        pf, pending, chain = stack[-1]
+        use = next(pending, None)
+        if use is None:
+            stack.pop()
+            continue
+        problem = path_problem(use.path.value)
+        if problem is not None:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{shown(use.path.value)}` cannot be read ({problem})", use.path.span))
+            continue
+        target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
+        real = os.path.realpath(target)
+        where = use.path.span
+        if not _inside(real, root_dir):
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{use.path.value}` is outside the workspace root {_short(root_dir)}", where))
+            continue
+        if real in chain:
+            cycle = " -> ".join(os.path.basename(p) for p in chain[chain.index(real):] + (real,))
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{use.path.value}` forms a cycle of use: {cycle}", where))
+            continue
+        if real in loaded:
+            continue
+        if len(chain) > MAX_USE_DEPTH:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{use.path.value}` is not loaded: `use` is nested more than {MAX_USE_DEPTH} "
+                                    f"files deep here", where))
+            continue
+        if len(files) > MAX_USE_FILES:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{use.path.value}` is not loaded: the deck already uses {MAX_USE_FILES} files",
+                                    where))
+            continue
+        try:
+            used = loader.load(target)
+        except IsADirectoryError:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                    f"`{use.path.value}` is a folder, not a deck file", where))
+            continue
+        except OSError as e:
+            reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
+            findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{shown(use.path.value)}` {reason}", where))
+            continue
+        files.append(used)
+        loaded.add(real)
+        findings.extend(used.findings)
+        stack.append((used, iter(used.deck.uses), chain + (real,)))
 
     # -- name table ------------------------------------------------------------
     definitions: dict[str, Definition] = {}
-    broken = frozenset().union(*(f.deck.broken_names for f in files))
+    broken = set().union(*(f.deck.broken_names for f in files))
     for pf in files:
-        for kind, name, node in pf.deck.definitions():
+        for count, (kind, name, node) in enumerate(pf.deck.definitions()):
+            if count == MAX_NAMES_PER_FILE:
+                findings.append(Finding("syntax-error", Severity.ERROR,
+                                        f"the file defines more than {MAX_NAMES_PER_FILE} names; this one and the "
+                                        "rest are not read", name.span))
+            if count >= MAX_NAMES_PER_FILE:
+                broken.add(name.value)  # so that their uses are not reported as undefined
+                continue
             d = Definition(kind, name, node, pf.path)
             first = definitions.get(name.value)
             if first is None:
@@ -302,6 +333,8 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
             ))
 
     references: list[Reference] = []
+    names_of_kind: dict[str, list[str]] = {}
+    suggested = [0]
 
     def ref(name: m.Located[str], kind: str) -> Optional[Definition]:
         d = definitions.get(name.value)
@@ -311,15 +344,19 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
         references.append(Reference(name, kind, None))
         if name.value in broken:
             return None
-        same_kind = [n for n, dd in definitions.items() if dd.kind == kind]
         fixes = ()
         if d is not None:
             msg = f"`{name.value}` is a {d.kind}, not a {kind}"
             related = (Related(d.name.span, f"`{name.value}` is defined here"),)
         else:
-            msg = f"no {kind} is named `{name.value}`" + did_you_mean(name.value, same_kind)
             related = ()
-            close = closest_names(name.value, same_kind)
+            close: list[str] = []
+            if suggested[0] < MAX_SUGGESTIONS:  # past that, a did-you-mean each would cost names x names
+                suggested[0] += 1
+                if kind not in names_of_kind:
+                    names_of_kind[kind] = [n for n, dd in definitions.items() if dd.kind == kind]
+                close = closest_names(name.value, names_of_kind[kind])
+            msg = f"no {kind} is named `{name.value}`" + (f"; did you mean `{close[0]}`?" if close else "")
             if close:
                 fixes = (Fix(f"Use the {kind} `{close[0]}`", (TextEdit(name.span, close[0]),), Applicability.RISKY),)
         findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related, fixes=fixes))
@@ -370,7 +407,8 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
                     ref(node.state, "state")
 
     findings.sort(key=Finding.sort_key)
-    return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings), broken)
+    return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings),
+                     frozenset(broken))
 
 
 def shown(text: str) -> str:

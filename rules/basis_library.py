@@ -218,10 +218,13 @@ def _merge(records: list[list]) -> list:
     return [counts, [sorted(e)[:3] for e in exps], max(r[2] for r in records)]
 
 
+@lru_cache(maxsize=4096)
 def element_data(word: str, symbol: str) -> ElementBasis | None:
     """What basis ``word`` yields for element ``symbol``; None if not covered.
 
-    ``symbol`` is matched case-insensitively (cl, Cl, CL).
+    ``symbol`` is matched case-insensitively (cl, Cl, CL).  Remembered: the
+    index never changes in a process, and every deck of a repository asks
+    about the same few basis sets and elements.
     """
     info = lookup(word)
     if info is None:

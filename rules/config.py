@@ -108,7 +108,11 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
         cfg.findings.append(Finding("invalid-config", Severity.ERROR, message, span))
 
     try:
-        root = yaml.compose(text, Loader=yaml.SafeLoader)
+        root = yaml.compose(text, Loader=_depth_limited_loader())
+    except RecursionError:  # a nesting the depth limit did not catch: still a located message
+        cfg.findings.append(Finding("invalid-config", Severity.ERROR,
+                                    "not valid YAML: nested too deeply to read", index.span(0, 1)))
+        return cfg
     except yaml.YAMLError as e:
         mark = getattr(e, "problem_mark", None)
         offset = mark.index if mark is not None else 0
@@ -154,6 +158,38 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
                     continue
                 target[k.value] = number
     return cfg
+
+
+MAX_CONFIG_DEPTH = 32  # nesting of YAML collections; the configuration needs 3
+
+
+_LOADER = None
+
+
+def _depth_limited_loader():
+    """``yaml.SafeLoader`` whose composer stops past ``MAX_CONFIG_DEPTH``
+    nested collections with a located error (the composer recurses once per
+    level: thousands of ``[`` would exhaust Python's stack)."""
+    global _LOADER
+    if _LOADER is None:
+        import yaml
+
+        class DepthLimitedLoader(yaml.SafeLoader):
+            depth = 0
+
+            def compose_node(self, parent, index):
+                self.depth += 1
+                try:
+                    if self.depth > MAX_CONFIG_DEPTH:
+                        mark = self.peek_event().start_mark
+                        raise yaml.composer.ComposerError(
+                            None, None, f"collections nested more than {MAX_CONFIG_DEPTH} levels deep", mark)
+                    return super().compose_node(parent, index)
+                finally:
+                    self.depth -= 1
+
+        _LOADER = DepthLimitedLoader
+    return _LOADER
 
 
 def _rules(node, cfg: Config, known: set[str], report) -> None:

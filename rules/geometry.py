@@ -96,6 +96,16 @@ def _recalled(store: dict, key, geometry):
     return hit if hit is not None and hit[0] is geometry else None
 
 
+def per_geometry(store: dict, geometry, compute):
+    """``compute(geometry)``, remembered in ``store`` for the last few
+    geometries (by identity: the model is immutable, and several rules ask
+    the same question about the same geometry in turn)."""
+    hit = _recalled(store, id(geometry), geometry)
+    if hit is not None:
+        return hit[1]
+    return _remember(store, id(geometry), geometry, compute(geometry))
+
+
 def sites(geometry: m.Geometry, include_ghosts: bool = True) -> list[Site]:
     """Atoms with a known element and radius, coordinates in angstrom.
     Atoms with an unknown symbol are left out (unknown-element reports them),
@@ -270,10 +280,13 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
             i = parent[i]
         return i
 
+    left = [n]  # fragments left: once one is left, nothing more can join
+
     def join(a: int, b: int) -> None:
         a, b = root(a), root(b)
         if a != b:
             parent[max(a, b)] = min(a, b)
+            left[0] -= 1
 
     at_point: dict[tuple[float, float, float], int] = {}
     for i, s in enumerate(items):
@@ -283,7 +296,13 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
             if s.radius > items[first].radius:
                 at_point[s.xyz] = i
     searched = list(at_point.values())
-    if len(searched) > 1:
+
+    def one_fragment(cell: list[int]):
+        """The fragment every atom of ``cell`` is in, or None if they are in several."""
+        first = root(searched[cell[0]])
+        return first if all(root(searched[c]) == first for c in cell) else None
+
+    def link() -> None:
         reps = [items[i] for i in searched]
         grid = _Grid(reps, tolerance * 2 * max(s.radius for s in reps))
         dist = math.dist
@@ -293,8 +312,14 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                 there = here if dx == dy == dz == 0 else grid.cells.get((kx + dx, ky + dy, kz + dz))
                 if not there:
                     continue
+                common = one_fragment(there)
+                if common is not None and one_fragment(here) == common:
+                    continue  # both cells are one fragment already: nothing to measure (a dense pile)
                 for pos, a in enumerate(here):
                     s, i = reps[a], searched[a]
+                    if common is not None and root(i) == common:
+                        continue  # every atom over there is in this atom's fragment already
+                    joined = False
                     for b in (here[pos + 1 :] if there is here else there):
                         j = searched[b]
                         if root(i) == root(j):
@@ -302,6 +327,14 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
                         t = reps[b]
                         if dist(s.xyz, t.xyz) <= tolerance * (s.radius + t.radius):
                             join(i, j)
+                            joined = True
+                            if left[0] == 1:
+                                return
+                    if joined:
+                        common = one_fragment(there)
+
+    if len(searched) > 1 and left[0] > 1:
+        link()
     groups: dict[int, list[Site]] = {}
     for i, s in enumerate(items):
         groups.setdefault(root(i), []).append(s)
@@ -341,10 +374,7 @@ def units_verdict(geometry: m.Geometry) -> Optional[UnitsVerdict]:
     ordinary bond as declared, or a neighbour too close even when re-read),
     so an ordinary geometry costs about one atom's neighbourhood.  Verdicts
     of the last few geometries are remembered: three rules ask."""
-    hit = _recalled(_VERDICTS, id(geometry), geometry)
-    if hit is not None:
-        return hit[1]
-    return _remember(_VERDICTS, id(geometry), geometry, _units_verdict(geometry))
+    return per_geometry(_VERDICTS, geometry, _units_verdict)
 
 
 def _units_verdict(geometry: m.Geometry) -> Optional[UnitsVerdict]:

@@ -82,13 +82,23 @@ def classify(ws: Workspace, derive: m.Derive) -> Optional[IonDerive]:
     return IonDerive(derive, quantity, linear_form(derive.expr), energy_difference(derive))
 
 
+_LAST_IONS: tuple = (None, ())  # (workspace, its ion derives): seven rules ask in turn
+
+
 def ion_derives(ws: Workspace) -> list[IonDerive]:
-    """Every IE/EA derive of the workspace, in definition order."""
+    """Every IE/EA derive of the workspace, in definition order.  The answer
+    for the last workspace asked about is remembered (the model is
+    immutable; the rules of one check ask one after the other)."""
+    global _LAST_IONS
+    last_ws, last = _LAST_IONS
+    if last_ws is ws:
+        return list(last)
     out = []
     for derive in ws.derives:
         d = classify(ws, derive)
         if d is not None:
             out.append(d)
+    _LAST_IONS = (ws, tuple(out))
     return out
 
 

@@ -16,15 +16,19 @@ from deckward.grammar import model as m
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 from . import reference_data
+from .geometry import per_geometry
 from .ion_states import EA, IonDerive
 from .reference_data import Species
+
+
+_SPECIES: dict = {}  # remembered per geometry: every state and several rules ask
 
 
 def species_of(rs: ResolvedState) -> Optional[Species]:
     """The tabulated neutral species of a state's geometry, or None."""
     if rs.geometry is None:
         return None
-    return reference_data.identify_geometry(rs.geometry)
+    return per_geometry(_SPECIES, rs.geometry, reference_data.identify_geometry)
 
 
 def _states_of(ws: Workspace, derive: m.Derive) -> list[ResolvedState]:

@@ -143,12 +143,16 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     if loader is not None and loader.overlay:
         jobs = 1
     if cache_dir is None and (jobs == 1 or len(tasks) < IN_PROCESS_BELOW):
+        own_loader = loader is None
         loader = loader or Loader()
+        shared: set[str] = set()
         for path, root in tasks:
             try:
                 ws = resolve(path, loader, root)
             except OSError as e:
                 raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
+            if own_loader:
+                release_unshared(loader, ws, shared)
             extra = []
             if probe:
                 from deckward.rules.probes import run_probes
@@ -166,6 +170,20 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
         raise UsageError(str(e))
     findings.extend(found)
     return CheckResult(files, dedupe(findings), config, notes=skipped + list(stats.notes), stats=stats)
+
+
+def release_unshared(loader: Loader, ws, shared: set[str]) -> None:
+    """Forget a checked deck's parse unless another deck has used it so far.
+
+    A repository check would otherwise keep every parsed deck alive to the
+    end: memory in proportion to the repository, and a garbage collector
+    that walks it all again and again.  Files that decks ``use`` stay (many
+    decks share them); a deck used only later is parsed again then, from the
+    remembered statement parses."""
+    for pf in ws.files[1:]:
+        shared.add(os.path.abspath(pf.path))
+    if os.path.abspath(ws.root.path) not in shared:
+        loader.forget(ws.root.path)
 
 
 def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:

@@ -256,9 +256,12 @@ def config_fingerprint(config) -> str:
     return hashlib.sha256(json.dumps(data, sort_keys=True, default=str).encode()).hexdigest()
 
 
-def entry_key(path: str, root_dir: str, root_digest: str, config_print: str, probe: bool) -> str:
+def entry_key(path: str, root_dir: str, root_digest: str, config_print: str, probe: bool,
+              realpath=os.path.realpath) -> str:
+    """The key of a deck's entry (``realpath``: a remembering stand-in for
+    ``os.path.realpath``, see ``FindingsCache.real``)."""
     text = json.dumps([FORMAT, code_fingerprint(), config_print, bool(probe), path,
-                       os.path.abspath(path), os.path.realpath(path), os.path.realpath(root_dir), root_digest])
+                       os.path.abspath(path), realpath(path), realpath(root_dir), root_digest])
     return hashlib.sha256(text.encode()).hexdigest()
 
 
@@ -277,6 +280,7 @@ class FindingsCache:
         self.misses = 0
         self.write_errors = 0
         self._digests: dict[str, Optional[str]] = {}
+        self._reals: dict[str, str] = {}
 
     def digest(self, path: str) -> Optional[str]:
         """File digests are remembered for one run: a file used by many
@@ -285,6 +289,15 @@ class FindingsCache:
         if key not in self._digests:
             self._digests[key] = file_digest(path)
         return self._digests[key]
+
+    def real(self, path: str) -> str:
+        """``os.path.realpath``, remembered for one run like the digests (it
+        costs a system call per folder of the path)."""
+        key = os.path.abspath(path)
+        found = self._reals.get(key)
+        if found is None:
+            found = self._reals[key] = os.path.realpath(path)
+        return found
 
     def _entry_path(self, key: str) -> str:
         return os.path.join(self.folder, key[:2], key + ".json")
@@ -301,7 +314,7 @@ class FindingsCache:
             if entry_problem(entry, key) is not None:
                 raise ValueError("entry rejected")
             for dep, real, digest in entry["deps"]:
-                if os.path.realpath(dep) != real or self.digest(dep) != digest:
+                if self.real(dep) != real or self.digest(dep) != digest:
                     self.misses += 1
                     return None
             findings = [finding_from_dict(d) for d in entry["findings"]]
@@ -317,7 +330,7 @@ class FindingsCache:
         import tempfile  # only a run that writes entries pays for it
 
         try:
-            dep_rows = [[d, os.path.realpath(d), self.digest(d)] for d in deps]
+            dep_rows = [[d, self.real(d), self.digest(d)] for d in deps]
         except (OSError, ValueError):  # a `use` path no file can have (a NUL byte): not cacheable
             return
         rows = [finding_to_dict(f) for f in findings]
@@ -346,6 +359,7 @@ class FindingsCache:
 
     def forget_digests(self) -> None:
         self._digests.clear()
+        self._reals.clear()
 
     def clear(self) -> int:
         """Delete every entry (and nothing else: the folder may be one a

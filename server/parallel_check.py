@@ -31,10 +31,12 @@ from deckward.grammar.resolve import Loader, Workspace, resolve
 from deckward.rules.config import Config
 from deckward.rules.engine import check_workspace
 
+from .checking import release_unshared
 from .findings_cache import FindingsCache, config_fingerprint, entry_key
 from .scale_options import IN_PROCESS_BELOW, default_jobs  # noqa: F401  (re-exported)
 
-MAX_CHUNK = 64
+MAX_CHUNK = 512
+CHUNKS_PER_WORKER = 3
 
 
 class DeckUnreadable(Exception):
@@ -84,9 +86,9 @@ def used_paths(ws: Workspace) -> list[str]:
     return out
 
 
-def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[list[Finding], list[str]]:
-    """Findings of one deck and the files they depend on (raises
-    DeckUnreadable)."""
+def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[list[Finding], list[str], Workspace]:
+    """Findings of one deck, the files they depend on, and its workspace
+    (raises DeckUnreadable)."""
     try:
         ws = resolve(task.path, loader, task.root)
     except OSError as e:
@@ -96,7 +98,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[
         from deckward.rules.probes import run_probes
 
         extra = run_probes(ws, config)
-    return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws)
+    return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws), ws
 
 
 class _Checker:
@@ -117,7 +119,7 @@ class _Checker:
         digest = self.cache.digest(task.path)
         if digest is None:
             return None
-        return entry_key(task.path, task.root, digest, self.config_print, self.probe)
+        return entry_key(task.path, task.root, digest, self.config_print, self.probe, self.cache.real)
 
     def lookup(self, key: Optional[str]) -> Optional[list[Finding]]:
         return self.cache.get(key) if self.cache is not None and key is not None else None
@@ -125,14 +127,18 @@ class _Checker:
     def run(self, jobs: list[tuple[Task, Optional[str]]], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
         """Check each (task, cache key) and store the findings under the key:
         ``("ok", findings)`` or ``("unreadable", reason)`` per task, in order."""
+        own_loader = loader is None
         loader = loader or Loader()
+        shared: set[str] = set()
         out: list[tuple[str, object]] = []
         for task, key in jobs:
             try:
-                findings, deps = check_one(task, loader, self.config, self.probe)
+                findings, deps, ws = check_one(task, loader, self.config, self.probe)
             except DeckUnreadable as e:
                 out.append(("unreadable", e.reason))
                 continue
+            if own_loader:
+                release_unshared(loader, ws, shared)
             self.checked += 1
             if key is not None and self.cache is not None:
                 self.cache.put(key, deps, findings)
@@ -154,6 +160,16 @@ def _init_worker(config: Config, probe: bool, cache_dir: Optional[str]) -> None:
     _WORKER = _Checker(config, probe, cache_dir)
 
 
+def _warm_up() -> None:
+    """Load the parser tables and import every rule before the workers
+    start: forked workers then share them instead of each loading its own."""
+    from deckward.grammar.parser import get_parser
+    from deckward.rules.registry import static_rules
+
+    get_parser()
+    static_rules()
+
+
 def _run_chunk(jobs: list[tuple[Task, Optional[str]]]):
     """One chunk in a worker: its results and the worker's counters since
     the previous chunk (so the parent can add them up)."""
@@ -165,9 +181,12 @@ def _run_chunk(jobs: list[tuple[Task, Optional[str]]]):
 
 
 def chunks(tasks: list, jobs: int) -> list[list]:
-    """About eight chunks a worker (so a slow chunk does not leave the
-    others idle), at most ``MAX_CHUNK`` decks each."""
-    size = max(1, min(MAX_CHUNK, math.ceil(len(tasks) / (jobs * 8))))
+    """About ``CHUNKS_PER_WORKER`` chunks a worker (so a slow chunk does not
+    leave the others idle for long), at most ``MAX_CHUNK`` decks each.
+    Chunks are large because each one costs a message each way and a fresh
+    ``Loader``, and because a worker's statement parses are shared only
+    within the worker: the fewer the pieces, the less is parsed twice."""
+    size = max(1, min(MAX_CHUNK, math.ceil(len(tasks) / (jobs * CHUNKS_PER_WORKER))))
     return [tasks[i : i + size] for i in range(0, len(tasks), size)]
 
 
@@ -202,6 +221,7 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
         done: list[tuple[str, object]] = []
         from concurrent.futures import ProcessPoolExecutor  # only when workers are needed
 
+        _warm_up()
         with ProcessPoolExecutor(max_workers=stats.workers, initializer=_init_worker,
                                  initargs=(config, probe, cache_dir)) as pool:
             for part_results, part_counters in pool.map(_run_chunk, parts):
