@@ -29,6 +29,7 @@ class RunOptions:
     max_memory_mb: Optional[float] = None  # None: PySCF's default
     time_limit_s: Optional[float] = None  # per state
     in_process: Optional[bool] = None  # None: decide from jobs and time limit
+    executor: Optional[object] = None  # an ``executors.Executor`` (None: this process or local workers)
 
     def use_workers(self) -> bool:
         if self.in_process is not None:
@@ -79,9 +80,11 @@ def _failure(plan: StatePlan, reason: str, log_path: Optional[str], took: float)
 
 
 def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOptions] = None,
-            progress: Optional[Progress] = None) -> dict[str, dict]:
+            progress: Optional[Progress] = None, on_result=None) -> dict[str, dict]:
     """Results by state name, for every plan (cached ones are not recomputed;
-    identical plans are computed once)."""
+    identical plans are computed once).  ``on_result(result)`` is called in
+    this process for each state as its result arrives (the results database
+    records them there)."""
     options = options or RunOptions()
     progress = progress or Progress(len(plans), enabled=False)
     results: dict[str, dict] = {}
@@ -93,6 +96,8 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
             hit = dict(hit, name=plan.name, basis=plan.basis_label, cached=True, key=key)
             results[plan.name] = hit
             progress.finished(plan.name, hit)
+            if on_result is not None:
+                on_result(hit)
             continue
         todo.setdefault(key, []).append(plan)
 
@@ -102,22 +107,18 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
             r = dict(result, name=p.name, basis=p.basis_label, key=key, cached=i > 0)
             results[p.name] = r
             progress.finished(p.name, r)
+            if on_result is not None:
+                on_result(r)
+
+    from .executors import default_executor
 
     with progress:
-        if not options.use_workers():
-            from .compute import compute_state
-
-            for key, group in todo.items():
-                plan = group[0]
-                progress.started(plan.name)
-                finish(key, compute_state(plan, cache.log_path(key), options.max_memory_mb,
-                                          options.threads_per_state()))
-        else:
-            _run_workers(todo, cache, options, progress, finish)
+        if todo:
+            default_executor(options).run(todo, cache, options, progress, finish)
     return {p.name: results[p.name] for p in plans}
 
 
-def _run_workers(todo, cache: RunCache, options: RunOptions, progress: Progress, finish) -> None:
+def run_workers(todo, cache: RunCache, options: RunOptions, progress: Progress, finish) -> None:
     ctx = _context()
     pending = list(todo.items())
     running: dict[str, tuple] = {}  # key -> (plan, process, connection, start)
