@@ -7,6 +7,8 @@ import os
 import sys
 
 from .checking import UsageError, config_for
+from .executor_options import add_executor_arguments, executor_from
+from .results_view import add_database_arguments, earlier_values, open_database
 
 HELP = "run a deck's calculations with PySCF and print energies and derived quantities"
 
@@ -24,6 +26,8 @@ def add_arguments(p) -> None:
     p.add_argument("--no-cache", action="store_true", help="recompute every state and store nothing")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress display on standard error")
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the deck)")
+    add_database_arguments(p)
+    add_executor_arguments(p)
 
 
 def _positive(name: str, value):
@@ -68,8 +72,12 @@ def run(args) -> int:
         return 2
     cache_dir = os.path.join(args.cache_dir, "runs") if args.cache_dir else None
     cache = RunCache(cache_dir, enabled=not args.no_cache)
-    report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet)
+    with open_database(args, cache.folder) as db, executor_from(args, config, options.jobs) as executor:
+        options.executor = executor
+        before = db.derived([ws.path]) if db is not None else []
+        report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet, database=db)
     sys.stdout.write(format_report(report))
+    sys.stdout.write(earlier_values(report, before))
     if args.json:
         try:
             with open(args.json, "w", encoding="utf-8") as f:

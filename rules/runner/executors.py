@@ -63,3 +63,17 @@ def default_executor(options) -> Executor:
     if getattr(options, "executor", None) is not None:
         return options.executor
     return LocalProcessExecutor() if options.use_workers() else InProcessExecutor()
+
+
+_probe_executor: list = [None]
+
+
+def set_probe_executor(executor) -> None:
+    """Where the probes' calculations run in this process (None: here).
+    Probes are reached through the checker's many entry points; the command
+    that owns a cluster sets it once instead of threading it through each."""
+    _probe_executor[0] = executor
+
+
+def probe_executor():
+    return _probe_executor[0]
