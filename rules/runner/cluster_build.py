@@ -15,8 +15,10 @@ def jobqueue_cluster(spec: ClusterSpec, retries: int):
     import dask
     import dask_jobqueue
 
+    from .dask_executor import scheduler_settings
+
     cls = getattr(dask_jobqueue, spec.jobqueue_class)
-    with dask.config.set({"distributed.scheduler.allowed-failures": int(retries)}):
+    with dask.config.set(scheduler_settings(retries)):
         return cls(**spec.options)
 
 

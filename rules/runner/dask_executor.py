@@ -27,6 +27,14 @@ DEFAULT_RETRIES = 2
 DEFAULT_CONNECT_TIMEOUT_S = 10.0
 
 
+def scheduler_settings(retries: int) -> dict:
+    """Dask settings of the schedulers deckward starts: the bound on worker
+    deaths a task survives, and no task waiting on a busy worker (a queued
+    task would count as a victim when that worker dies)."""
+    return {"distributed.scheduler.allowed-failures": int(retries),
+            "distributed.scheduler.worker-saturation": 1.0}
+
+
 class SchedulerUnreachable(Exception):
     """The scheduler did not answer (a one-line message for the user)."""
 
@@ -71,7 +79,7 @@ class DaskExecutor:
         import dask
         from distributed import Client, LocalCluster
 
-        with dask.config.set({"distributed.scheduler.allowed-failures": int(retries)}):
+        with dask.config.set(scheduler_settings(retries)):
             cluster = LocalCluster(n_workers=int(workers), threads_per_worker=1, processes=True,
                                    host="127.0.0.1", dashboard_address=None)
         client = Client(cluster, set_as_default=False)
@@ -103,6 +111,15 @@ class DaskExecutor:
                 self.cluster.close()
 
     # -- running ---------------------------------------------------------------
+    def slots(self) -> int:
+        """Task slots (worker threads) the cluster has now; at least one, so
+        that a batch cluster still waiting for its jobs gets work queued."""
+        try:
+            workers = self.client.scheduler_info().get("workers", {})
+        except Exception:  # the scheduler went away: the futures will say so
+            return 1
+        return max(1, sum(int(w.get("nthreads", 1)) for w in workers.values()))
+
     def run(self, todo: dict[str, list[StatePlan]], cache, options, progress, finish) -> None:
         from distributed import wait
 
@@ -132,19 +149,28 @@ class DaskExecutor:
 
         client.subscribe_topic(STARTED_TOPIC, on_started)
         try:
-            # Optimisations first, so that frequency jobs can depend on them.
-            for key, group in todo.items():
-                plan = group[0]
-                relaxed = None
-                if plan.optimize and plan.frequencies:
-                    relaxed = self._optimisation_for(plan, todo, cache, submit, helpers, submitted)
-                if key not in submitted:
-                    futures[submit(key, plan, relaxed)] = (key, plan)
-                else:
-                    futures[submitted[key]] = (key, plan)
-                progress.queue(plan.name)
-            pending = set(futures) | set(helpers)
+            waiting = list(todo.items())
+            for _, group in waiting:
+                progress.queue(group[0].name)
+            pending: set = set()
+            stored: set = set()  # optimisation helpers already handled
+
+            def top_up() -> None:
+                # Only as many tasks as the cluster has task slots: a task
+                # waiting on a worker would die with it.
+                while waiting and len(pending) < self.slots():
+                    key, group = waiting.pop(0)
+                    plan = group[0]
+                    relaxed = None
+                    if plan.optimize and plan.frequencies:
+                        relaxed = self._optimisation_for(plan, todo, cache, submit, helpers, submitted)
+                    fut = submitted[key] if key in submitted else submit(key, plan, relaxed)
+                    futures[fut] = (key, plan)
+                    pending.add(fut)
+                    pending.update(f for f in helpers if f not in stored)
+
             limit = options.time_limit_s
+            top_up()
             while pending:
                 try:
                     with client.as_current():
@@ -154,10 +180,12 @@ class DaskExecutor:
                 for fut in done:
                     pending.discard(fut)
                     if fut in helpers:
+                        stored.add(fut)
                         self._store_helper(fut, helpers[fut], cache)
                     if fut in futures:
                         key, plan = futures[fut]
                         finish(key, self._result(fut, plan, cache.log_path(key), started_at.get(key)))
+                top_up()
                 if limit:
                     now = time.monotonic()
                     for fut in [f for f in pending if f in futures]:
@@ -219,7 +247,8 @@ def task_failure_reason(error: BaseException) -> str:
 
     if isinstance(error, KilledWorker):
         allowed = error.args[2] if len(error.args) > 2 else None
-        bound = f" {allowed + 1} times" if isinstance(allowed, int) else ""
+        deaths = allowed + 1 if isinstance(allowed, int) else None
+        bound = {None: "", 1: " once", 2: " twice"}.get(deaths, f" {deaths} times")
         return (f"the worker computing it died{bound} (killed, or out of memory); the scheduler stopped "
                 "retrying it on other workers")
     text = str(error).strip().splitlines()[0] if str(error).strip() else ""

@@ -30,8 +30,10 @@ def _worker():
         return None
 
 
-def worker_resources(worker, threads: Optional[int], max_memory_mb: Optional[float]) -> tuple:
-    """(threads, memory in MB) for one state on ``worker``."""
+def worker_resources(dask_worker, threads: Optional[int] = None, max_memory_mb: Optional[float] = None) -> tuple:
+    """(threads, memory in MB) for one state on ``dask_worker`` (the name
+    ``Client.run`` fills in)."""
+    worker = dask_worker
     if worker is None:
         return threads, max_memory_mb
     slots = max(1, int(worker.state.nthreads))
