@@ -133,6 +133,10 @@ def _one(name: str, name_node, body, report: Callable) -> Optional[ClusterSpec]:
         ok = False
     if not ok:
         return None
+    # One worker process per batch job unless asked otherwise: its task
+    # slots then share the job's cores, which is what a state's threads
+    # are counted from (dask-jobqueue would otherwise split the job).
+    values.setdefault("processes", 1)
     kind = values.pop("kind")
     jobs = values.pop("jobs", 1)
     retries = values.pop("retries", 2)

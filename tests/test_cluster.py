@@ -115,7 +115,7 @@ def test_threads_and_memory_follow_the_worker(local_cluster):
     client = local_cluster.client
     infos = client.scheduler_info()["workers"]
     for address, (threads, memory) in client.run(worker_resources).items():
-        assert threads == os.cpu_count()  # one task slot per worker: the machine's cores
+        assert threads == len(os.sched_getaffinity(0))  # one task slot per worker: all its cores
         # three quarters of the worker's memory limit, in MB
         assert memory == round(infos[address]["memory_limit"] / 2**20 * 0.75)
     fixed = client.run(worker_resources, threads=3, max_memory_mb=500)

@@ -3,7 +3,7 @@
 Kept apart from ``dask_executor`` so that a worker imports only this module
 and the runner (``deckward`` must be installed where the workers run).  The
 state's threads and memory follow the worker it lands on unless the run
-fixed them: OpenMP threads = the machine's cores shared among the worker's
+fixed them: OpenMP threads = the cores the worker may use shared among its
 task slots, PySCF's memory limit = the worker's memory limit shared the
 same way.
 """
@@ -19,6 +19,15 @@ STARTED_TOPIC = "deckward-state-started"
 # PySCF's max_memory bounds its own arrays only; the interpreter, integrals
 # and libraries need the rest (common practice, no source).
 MEMORY_SHARE = 0.75
+
+
+def usable_cores() -> int:
+    """Cores this process may run on (a batch job's allotment, not the
+    whole node)."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):
+        return os.cpu_count() or 1
 
 
 def _worker():
@@ -38,7 +47,7 @@ def worker_resources(dask_worker, threads: Optional[int] = None, max_memory_mb: 
         return threads, max_memory_mb
     slots = max(1, int(worker.state.nthreads))
     if not threads:
-        threads = max(1, (os.cpu_count() or 1) // slots)
+        threads = max(1, usable_cores() // slots)
     limit = getattr(getattr(worker, "memory_manager", None), "memory_limit", None)
     if not max_memory_mb and limit:
         max_memory_mb = round(limit / slots / 2**20 * MEMORY_SHARE)
