@@ -137,7 +137,7 @@ def test_results_command_lists_what_run_recorded(tmp_path):
     data = json.loads(as_json.stdout)
     assert data["format"] == "deckward-results/1"
     assert {d["name"]: d["unit"] for d in data["derived"]} == {"ie_he": "ev", "e_h": "hartree"}
-    assert sorted(s["state"] for s in data["states"]) == ["helium", "hydrogen", "helium_cation"]
+    assert sorted(s["state"] for s in data["states"]) == ["helium", "helium_cation", "hydrogen"]
     table = _deckward("results", "--cache-dir", cache, cwd=str(tmp_path))
     assert table.returncode == 0
     lines = table.stdout.splitlines()
