@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import time
 import uuid
+import warnings
 from dataclasses import asdict
 from typing import Optional
 
@@ -79,7 +80,8 @@ class DaskExecutor:
         import dask
         from distributed import Client, LocalCluster
 
-        with dask.config.set(scheduler_settings(retries)):
+        with dask.config.set(scheduler_settings(retries)), warnings.catch_warnings():
+            warnings.simplefilter("ignore", UserWarning)  # "port 8787 in use" when another cluster runs
             cluster = LocalCluster(n_workers=int(workers), threads_per_worker=1, processes=True,
                                    host="127.0.0.1", dashboard_address=None)
         client = Client(cluster, set_as_default=False)
