@@ -29,6 +29,9 @@ def add_arguments(p) -> None:
                    help="also run the PySCF probes and plot their numbers (slow: minutes, not milliseconds)")
     add_scale_arguments(p)
     add_executor_arguments(p)
+    p.add_argument("--db", metavar="FILE",
+                   help="results database whose recorded values the report shows (default: the one `deckward run` "
+                        "records into, when it exists)")
 
 
 def run(args) -> int:
@@ -39,6 +42,7 @@ def run(args) -> int:
     with executor_from(args, config, max(1, args.jobs)) as executor, probes_on(executor):
         result = check_paths(args.paths, config=config, probe=args.probe, **scale)
     review = build_review(result, title=args.title, probed=args.probe)
+    _attach_recorded(args, review)
     if args.format == "markdown":
         from .review_markdown import render_review_markdown
 
@@ -61,3 +65,21 @@ def run(args) -> int:
     else:
         sys.stdout.write(text)
     return 0
+
+
+def _attach_recorded(args, review) -> None:
+    """Recorded derived values per deck, when there is a database to read."""
+    from deckward.rules.runner.results_db import DatabaseError, ResultsDB, default_db_path
+
+    path = args.db or default_db_path()
+    if not os.path.isfile(path):
+        if args.db:
+            raise UsageError(f"{args.db}: no such results database")
+        return
+    from .review_batch import attach_recorded
+
+    try:
+        with ResultsDB(path, readonly=True) as db:
+            attach_recorded(review, db)
+    except DatabaseError as e:
+        raise UsageError(str(e)) from None

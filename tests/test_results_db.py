@@ -167,3 +167,23 @@ def test_results_without_a_database_is_one_line(tmp_path):
     assert proc.returncode == 2
     assert proc.stderr.strip() == (f"deckward: error: {tmp_path / 'none' / 'results.sqlite'}: no results database yet "
                                    "(`deckward run` records one)")
+
+
+def test_review_report_shows_the_recorded_values(tmp_path):
+    deck = write_deck(tmp_path, H_ATOMS, "atoms.deck")
+    db = str(tmp_path / "r.sqlite")
+    assert _deckward("run", "--quiet", "--cache-dir", str(tmp_path / "c"), "--db", db, deck).returncode == 0
+    with ResultsDB(db, readonly=True) as conn:
+        want = {r["name"]: r["value"] for r in conn.derived()}
+    md = _deckward("review", "--format", "markdown", "--db", db, deck)
+    assert md.returncode == 0, md.stderr
+    lines = md.stdout.splitlines()
+    at = lines.index("Computed by `deckward run` (latest in the results database):")
+    assert lines[at + 2:at + 4] == ["| Derived | Value | Recorded |", "| --- | ---: | --- |"]
+    assert lines[at + 4].startswith(f"| `ie_he` | {want['ie_he']:.6f} ev | ")
+    assert lines[at + 5].startswith(f"| `e_h` | {want['e_h']:.6f} hartree | ")
+    html = _deckward("review", "--db", db, deck)
+    assert f"<td>{want['ie_he']:.6f} ev</td>" in html.stdout
+    missing = _deckward("review", "--db", str(tmp_path / "none.sqlite"), deck)
+    assert missing.returncode == 2
+    assert missing.stderr.strip() == f"deckward: error: {tmp_path / 'none.sqlite'}: no such results database"
