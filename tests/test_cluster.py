@@ -169,6 +169,33 @@ def test_worker_deaths_past_the_bound_fail_that_state_only(tmp_path):
     assert not d["e_slow"].available and d["e_h"].available
 
 
+def test_time_limit_on_a_cluster_fails_the_state_and_keeps_no_result(tmp_path, local_cluster):
+    ws = workspace(tmp_path, LONG)
+    cache = RunCache(str(tmp_path / "cache"))
+    report = run_workspace(ws, cache, RunOptions(executor=local_cluster, time_limit_s=0.5))
+    slow = report.state("slow")
+    assert slow["status"] == "failed"
+    assert slow["reason"] == ("stopped at the time limit of 0.5 s (the worker may finish it in the background; "
+                              "the result is not kept)")
+    assert cache.get(slow["key"]) is None
+    assert report.state("hydrogen")["status"] == "ok" or "time limit" in report.state("hydrogen")["reason"]
+
+
+def test_probes_run_on_a_local_cluster(tmp_path):
+    deck = write_deck(tmp_path, """geometry he { He 0 0 0 }
+level hf_min { method = hf basis = sto-3g }
+state helium { geometry = he level = hf_min charge = 0 multiplicity = 1 reference = restricted }
+derive ie_koopmans as ionization_energy = -orbital(helium, homo) in ev
+""", "he.deck")
+    proc = _deckward("probe", "--cluster", "local", "--jobs", "2", "--cache-dir", str(tmp_path / "c"),
+                     "--format", "json", deck)
+    assert proc.returncode in (0, 1), proc.stderr
+    assert "probe-koopmans-relaxation" in proc.stdout
+    stored = [json.loads((tmp_path / "c" / "runs" / f).read_text())
+              for f in os.listdir(tmp_path / "c" / "runs") if f.endswith(".json")]
+    assert stored and all("(tcp://127.0.0.1:" in r["host"] for r in stored)
+
+
 @pytest.fixture(scope="module")
 def dask_processes(tmp_path_factory):
     with DaskProcesses(str(tmp_path_factory.mktemp("dask")), workers=2) as cluster:

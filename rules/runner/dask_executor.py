@@ -187,7 +187,6 @@ class DaskExecutor:
                     if fut in futures:
                         key, plan = futures[fut]
                         finish(key, self._result(fut, plan, cache.log_path(key), started_at.get(key)))
-                top_up()
                 if limit:
                     now = time.monotonic()
                     for fut in [f for f in pending if f in futures]:
@@ -199,6 +198,7 @@ class DaskExecutor:
                             finish(key, _failure(plan, f"stopped at the time limit of {limit:g} s (the worker may "
                                                  "finish it in the background; the result is not kept)",
                                                  cache.log_path(key), now - t0))
+                top_up()
         except BaseException:
             unfinished = [f for f in list(futures) + list(helpers) if not f.done()]
             if unfinished:
