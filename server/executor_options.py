@@ -8,6 +8,7 @@ start) is one line and exit status 2.
 """
 from __future__ import annotations
 
+import sys
 from contextlib import contextmanager
 from typing import Optional
 
@@ -48,6 +49,9 @@ def executor_from(args, config, jobs: int = 1):
             if "://" not in scheduler:
                 raise UsageError(f"--scheduler takes an address such as tcp://host:8786, not `{scheduler}`")
             executor = de.DaskExecutor.connect(scheduler, args.connect_timeout)
+            if retries is not None:
+                sys.stderr.write(f"deckward: note: --retries applies to clusters deckward starts; the scheduler at "
+                                 f"{scheduler} keeps its own bound (distributed.scheduler.allowed-failures)\n")
         elif cluster == "local":
             executor = de.DaskExecutor.local(max(1, jobs), de.DEFAULT_RETRIES if retries is None else retries)
         else:

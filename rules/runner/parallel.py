@@ -95,9 +95,9 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
         if hit is not None:
             hit = dict(hit, name=plan.name, basis=plan.basis_label, cached=True, key=key)
             results[plan.name] = hit
-            progress.finished(plan.name, hit)
-            if on_result is not None:
+            if on_result is not None:  # recorded before it is shown as done
                 on_result(hit)
+            progress.finished(plan.name, hit)
             continue
         todo.setdefault(key, []).append(plan)
 
@@ -106,9 +106,9 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
         for i, p in enumerate(todo[key]):
             r = dict(result, name=p.name, basis=p.basis_label, key=key, cached=i > 0)
             results[p.name] = r
-            progress.finished(p.name, r)
             if on_result is not None:
                 on_result(r)
+            progress.finished(p.name, r)
 
     from .executors import default_executor
 
