@@ -14,7 +14,7 @@ import sys
 
 from .checking import UsageError, check_paths, config_for
 from .executor_options import add_executor_arguments, executor_from, probes_on
-from .parallel_check import add_scale_arguments, scale_options
+from .scale_options import add_scale_arguments, scale_options
 
 HELP = "write a review report (HTML or Markdown) on a batch of decks"
 

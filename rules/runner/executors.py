@@ -40,21 +40,20 @@ class InProcessExecutor:
 
     def run(self, todo, cache, options, progress, finish: Finish) -> None:
         from .compute import compute_state
+        from .interrupt import immediate_interrupt
+        from .parallel import _run_here
 
-        for key, group in todo.items():
-            plan = group[0]
-            progress.started(plan.name)
-            finish(key, compute_state(plan, cache.log_path(key), options.max_memory_mb,
-                                      options.threads_per_state()))
+        with immediate_interrupt():
+            _run_here(todo, cache, options, progress, finish, compute_state)
 
 
 class LocalProcessExecutor:
     description = "local worker processes"
 
     def run(self, todo, cache, options, progress, finish: Finish) -> None:
-        from .parallel import run_workers
+        from .parallel import _run_workers
 
-        run_workers(todo, cache, options, progress, finish)
+        _run_workers(todo, cache, options, progress, finish)
 
 
 def default_executor(options) -> Executor:
