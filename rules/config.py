@@ -18,7 +18,7 @@ from deckward.grammar.text_index import LineIndex
 
 CONFIG_NAME = "deckward.yaml"
 SEVERITY_WORDS = ("error", "warning", "info", "off")
-TOP_KEYS = ("rules", "exclude", "probe", "run")
+TOP_KEYS = ("rules", "exclude", "probe", "run", "cluster")
 PROBE_KEYS = ("time_limit_s", "max_basis_functions", "threshold_ev")
 RUN_KEYS = ("max_memory_mb", "threads", "jobs", "time_limit_s", "max_basis_functions")
 
@@ -43,6 +43,7 @@ class Config:
     exclude: list[str] = field(default_factory=list)
     probe: dict = field(default_factory=dict)
     run: dict = field(default_factory=dict)
+    clusters: dict = field(default_factory=dict)  # name -> cluster_config.ClusterSpec
     findings: list[Finding] = field(default_factory=list)
 
     def severity_for(self, rule_id: str, default: Severity) -> Optional[Severity]:
@@ -123,7 +124,7 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
     if root is None:
         return cfg
     if not isinstance(root, yaml.MappingNode):
-        report(root, "the configuration must be a mapping of keys (rules, exclude, probe, run)")
+        report(root, f"the configuration must be a mapping of keys ({', '.join(TOP_KEYS)})")
         return cfg
     for key_node, value in root.value:
         key = key_node.value
@@ -131,6 +132,10 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
             report(key_node, f"unknown key `{key}` (keys: {', '.join(TOP_KEYS)})" + did_you_mean(str(key), TOP_KEYS))
         elif key == "rules":
             _rules(value, cfg, known_rules, report)
+        elif key == "cluster":
+            from .cluster_config import parse_clusters
+
+            cfg.clusters = parse_clusters(value, report)
         elif key == "exclude":
             if not isinstance(value, yaml.SequenceNode) or not all(isinstance(v, yaml.ScalarNode) for v in value.value):
                 report(value, "`exclude` must be a list of glob patterns")

@@ -26,6 +26,7 @@ COMMANDS = {
     "run": "deckward.server.cmd_run",
     "probe": "deckward.server.cmd_probe",
     "review": "deckward.server.cmd_review",
+    "results": "deckward.server.cmd_results",
 }
 
 

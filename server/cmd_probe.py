@@ -11,6 +11,7 @@ import os
 import sys
 
 from .checking import CheckResult, UsageError, config_for, discover, root_for
+from .executor_options import add_executor_arguments, executor_from, probes_on
 from .report_options import add_report_arguments, check_format, report
 
 HELP = "run the PySCF probes (cheap Hartree-Fock checks with numbers) on deck files"
@@ -20,16 +21,23 @@ def add_arguments(p) -> None:
     add_report_arguments(p, paths_metavar="DECK")
     p.add_argument("--cache-dir", metavar="DIR",
                    help="results cache (default: $DECKWARD_CACHE_DIR/runs or ~/.cache/deckward/runs)")
+    p.add_argument("--jobs", "-j", type=int, default=1, metavar="N", help="workers of --cluster local (default 1)")
+    add_executor_arguments(p)
 
 
 def run(args) -> int:
+    check_format(args)
+    config = config_for(args.paths, args.config)
+    with executor_from(args, config, args.jobs) as executor, probes_on(executor):
+        return _probe_all(args, config)
+
+
+def _probe_all(args, config) -> int:
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.engine import check_workspace, dedupe
     from deckward.rules.probes import PROBE_RULES, run_probes, unprobed_reason
     from deckward.rules.runner.cache import RunCache
 
-    check_format(args)
-    config = config_for(args.paths, args.config)
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}
     loader = Loader()

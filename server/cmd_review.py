@@ -12,7 +12,8 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import UsageError, check_paths
+from .checking import UsageError, check_paths, config_for
+from .executor_options import add_executor_arguments, executor_from, probes_on
 from .scale_options import add_scale_arguments, scale_options
 
 HELP = "write a review report (HTML or Markdown) on a batch of decks"
@@ -27,13 +28,21 @@ def add_arguments(p) -> None:
     p.add_argument("--probe", action="store_true",
                    help="also run the PySCF probes and plot their numbers (slow: minutes, not milliseconds)")
     add_scale_arguments(p)
+    add_executor_arguments(p)
+    p.add_argument("--db", metavar="FILE",
+                   help="results database whose recorded values the report shows (default: the one `deckward run` "
+                        "records into, when it exists)")
 
 
 def run(args) -> int:
     from .review_batch import build_review
 
-    result = check_paths(args.paths, config_path=args.config, probe=args.probe, **scale_options(args))
+    scale = scale_options(args)  # probes run in this process, whatever --jobs says
+    config = config_for(args.paths, args.config)
+    with executor_from(args, config, max(1, args.jobs)) as executor, probes_on(executor):
+        result = check_paths(args.paths, config=config, probe=args.probe, **scale)
     review = build_review(result, title=args.title, probed=args.probe)
+    _attach_recorded(args, review)
     if args.format == "markdown":
         from .review_markdown import render_review_markdown
 
@@ -56,3 +65,21 @@ def run(args) -> int:
     else:
         sys.stdout.write(text)
     return 0
+
+
+def _attach_recorded(args, review) -> None:
+    """Recorded derived values per deck, when there is a database to read."""
+    from deckward.rules.runner.results_db import DatabaseError, ResultsDB, default_db_path
+
+    path = args.db or default_db_path()
+    if not os.path.isfile(path):
+        if args.db:
+            raise UsageError(f"{args.db}: no such results database")
+        return
+    from .review_batch import attach_recorded
+
+    try:
+        with ResultsDB(path, readonly=True) as db:
+            attach_recorded(review, db)
+    except DatabaseError as e:
+        raise UsageError(str(e)) from None

@@ -7,6 +7,8 @@ import os
 import sys
 
 from .checking import UsageError, config_for
+from .executor_options import add_executor_arguments, executor_from
+from .results_view import add_database_arguments, earlier_values, open_database
 
 HELP = "run a deck's calculations with PySCF and print energies and derived quantities"
 
@@ -24,6 +26,8 @@ def add_arguments(p) -> None:
     p.add_argument("--no-cache", action="store_true", help="recompute every state and store nothing")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress display on standard error")
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the deck)")
+    add_database_arguments(p)
+    add_executor_arguments(p)
     p.add_argument("--force", action="store_true",
                    help="run states above run.max_basis_functions or the memory estimate anyway")
 
@@ -87,8 +91,12 @@ def run(args) -> int:
     if problem is not None:
         sys.stderr.write(problem + "\n")
         return 2
-    report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet)
+    with open_database(args, cache.folder) as db, executor_from(args, config, options.jobs) as executor:
+        options.executor = executor
+        before = db.derived([ws.path]) if db is not None else []
+        report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet, database=db)
     sys.stdout.write(format_report(report))
+    sys.stdout.write(earlier_values(report, before))
     sys.stderr.write("".join(f"deckward: {n}\n" for n in cache.notes))
     if args.json:
         try:

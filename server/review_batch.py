@@ -44,6 +44,7 @@ class DeckEntry:
     text: Optional[str]  # None when it could not be read again for the report
     findings: list[Finding] = field(default_factory=list)  # active, in source order
     suppressed: list[Finding] = field(default_factory=list)
+    recorded: list[dict] = field(default_factory=list)  # latest derived values from the results database
 
     def counts(self) -> dict[Severity, int]:
         c = {s: 0 for s in SEVERITIES}
@@ -114,6 +115,28 @@ def build_review(result: CheckResult, title: str = "Deck review", probed: bool =
                 s.severity = f.severity
     rules = sorted(by_rule.values(), key=lambda s: (-len(s.decks), -s.severity.rank, -s.findings, s.info.id))
     return Review(title, list(entries.values()), rules, probed, list(result.notes))
+
+
+def attach_recorded(review: Review, db) -> None:
+    """The latest recorded derived values of each deck (``results_db``),
+    so the report shows what was computed beside what the set-up says."""
+    import os
+
+    rows = db.derived([d.path for d in review.decks])
+    for d in review.decks:
+        full = os.path.abspath(d.path)
+        d.recorded = [r for r in rows if r["deck_path"] == full]
+
+
+def recorded_rows(entry: DeckEntry) -> list[tuple[str, str, str]]:
+    """(name, value with unit, when) of a deck's recorded derived values."""
+    import time
+
+    out = []
+    for r in entry.recorded:
+        value = f"{r['value']:.6f} {r['unit']}" if r["value"] is not None else f"not available: {r['reason']}"
+        out.append((r["name"], value, time.strftime("%Y-%m-%d %H:%M UTC", time.gmtime(r["recorded_at"]))))
+    return out
 
 
 def batch_sentence(summary: RuleSummary, total_decks: int) -> str:

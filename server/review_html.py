@@ -17,7 +17,8 @@ from importlib import resources
 from deckward import __version__
 from deckward.grammar.findings import Finding, Severity
 
-from .review_batch import SEVERITIES, DeckEntry, Review, context_lines, evidence_rows, fix_diff, rule_info
+from .review_batch import (SEVERITIES, DeckEntry, Review, context_lines, evidence_rows, fix_diff, recorded_rows,
+                           rule_info)
 
 LABELS = {Severity.ERROR: "Error", Severity.WARNING: "Warning", Severity.INFO: "Info"}
 COLUMN = {Severity.ERROR: "Errors", Severity.WARNING: "Warnings", Severity.INFO: "Info"}
@@ -181,6 +182,14 @@ def finding_article(deck: DeckEntry, f: Finding, n: int, texts: dict, probed: bo
     return "\n".join(out)
 
 
+def recorded_table(deck: DeckEntry) -> str:
+    rows = "".join(f"<tr><td><code>{e(n)}</code></td><td>{e(v)}</td><td>{e(w)}</td></tr>"
+                   for n, v, w in recorded_rows(deck))
+    return ('<table class="recorded"><caption>Computed by <code>deckward run</code> (latest in the results '
+            'database)</caption><thead><tr><th scope="col">Derived</th><th scope="col">Value</th>'
+            f'<th scope="col">Recorded</th></tr></thead><tbody>{rows}</tbody></table>')
+
+
 def deck_section(deck: DeckEntry, texts: dict, probed: bool, index: int) -> str:
     c = deck.counts()
     out = [f'<section class="deck" id="{deck.anchor}" aria-labelledby="{deck.anchor}-h">',
@@ -193,6 +202,8 @@ def deck_section(deck: DeckEntry, texts: dict, probed: bool, index: int) -> str:
         out.append("<p>" + ", ".join(f"{badge(s)} {c[s]}" for s in SEVERITIES if c[s]) + "</p>")
     if probed:
         out.append(probe_figure(deck, index))
+    if deck.recorded:
+        out.append(recorded_table(deck))
     for n, f in enumerate(deck.findings, 1):
         out.append(finding_article(deck, f, n, texts, probed))
     if deck.suppressed:

@@ -12,7 +12,8 @@ from deckward.grammar.findings import Severity
 from deckward.grammar.wording import counted
 
 from .format_markdown import code, md_text
-from .review_batch import SEVERITIES, Review, batch_sentence, context_lines, evidence_rows, fix_diff, rule_info
+from .review_batch import (SEVERITIES, Review, batch_sentence, context_lines, evidence_rows, fix_diff, recorded_rows,
+                           rule_info)
 
 LABELS = {Severity.ERROR: "Errors", Severity.WARNING: "Warnings", Severity.INFO: "Info"}
 
@@ -45,6 +46,11 @@ def render_review_markdown(review: Review) -> str:
     texts = {d.path: d.text for d in review.decks}
     for d in review.decks:
         out += ["", f"## {code(d.path)}", ""]
+        if d.recorded:
+            out += ["Computed by `deckward run` (latest in the results database):", "",
+                    "| Derived | Value | Recorded |", "| --- | ---: | --- |"]
+            out += [f"| {code(n)} | {md_text(v)} | {w} |" for n, v, w in recorded_rows(d)]
+            out.append("")
         if not d.findings:
             out.append("No findings.")
         explained: set[str] = set()

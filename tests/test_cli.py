@@ -83,7 +83,7 @@ def test_config_severity_and_validation(tmp_path):
     assert [ln for ln in out if "invalid-config" in ln] == [
         f"{cfg}:3:3: error: invalid-config: unknown rule `koopmans-ea`; did you mean `koopmans-ip`?",
         f"{cfg}:4:22: error: invalid-config: `sometimes` is not a severity (error | warning | info | off)",
-        f"{cfg}:5:1: error: invalid-config: unknown key `exclud` (keys: rules, exclude, probe, run); "
+        f"{cfg}:5:1: error: invalid-config: unknown key `exclud` (keys: rules, exclude, probe, run, cluster); "
         "did you mean `exclude`?",
     ]
     assert any(": warning: restricted-open-shell:" in ln for ln in out)

@@ -176,7 +176,9 @@ class ProbeContext:
             reason = self.too_large(plan)
             if reason is not None:
                 raise ProbeSkipped(reason)
-            options = RunOptions(jobs=1, time_limit_s=self.settings.time_limit_s)
+            from ..runner.executors import probe_executor
+
+            options = RunOptions(jobs=1, time_limit_s=self.settings.time_limit_s, executor=probe_executor())
             self._results[key] = execute([plan], self.cache, options)[plan.name]
         result = self._results[key]
         if result["status"] != "ok":

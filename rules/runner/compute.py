@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import contextlib
 import os
+import socket
 import tempfile
 import time
 import traceback
@@ -208,16 +209,20 @@ def empty_result(plan: StatePlan) -> dict:
         "cached": False,
         "log": None,
         "key": None,
+        "host": socket.gethostname(),
     }
 
 
-def _compute(plan: StatePlan, out: dict, log, log_path: Optional[str], max_memory_mb) -> None:
+def _compute(plan: StatePlan, out: dict, log, log_path: Optional[str], max_memory_mb,
+             relaxed: Optional[dict] = None) -> None:
     from .pyscf_build import build_mole
 
     mol = build_mole(plan, max_memory_mb, log)
     out["n_basis"] = int(mol.nao)
     out["overlap_min_eigenvalue"] = _smallest_overlap_eigenvalue(mol)
-    if plan.optimize:
+    if plan.optimize and relaxed is not None:
+        _take_relaxed(mol, relaxed, out)
+    elif plan.optimize:
         if plan.kind in ("ccsd(t)", "cisd", "dft+mp2"):
             raise _Failure(f"optimize(...) needs nuclear gradients, which PySCF does not offer for "
                            f"{plan.method} here; optimise at another level in a separate state")
@@ -245,10 +250,25 @@ def _compute(plan: StatePlan, out: dict, log, log_path: Optional[str], max_memor
     out["energy"] = energy
 
 
+def _take_relaxed(mol, relaxed: dict, out: dict) -> None:
+    """Start from the geometry an earlier optimisation of the same plan
+    found (a dependent task on a cluster), instead of optimising again."""
+    import numpy as np
+
+    if relaxed.get("status") != "ok" or not relaxed.get("optimized_geometry"):
+        raise _Failure(f"the geometry optimisation this state needs did not finish: {relaxed.get('reason')}")
+    coords = np.array([row[1:4] for row in relaxed["optimized_geometry"]], dtype=float)
+    mol.set_geom_(coords, unit="Angstrom")
+    out["optimized_geometry"] = relaxed["optimized_geometry"]
+    out["overlap_min_eigenvalue"] = _smallest_overlap_eigenvalue(mol)
+
+
 def compute_state(plan: StatePlan, log_path: Optional[str] = None, max_memory_mb: Optional[float] = None,
-                  threads: Optional[int] = None) -> dict:
+                  threads: Optional[int] = None, relaxed: Optional[dict] = None) -> dict:
     """Compute one state; never raises (a failure is a result).  PySCF's
-    log, its warnings and geomeTRIC's output go to ``log_path``."""
+    log, its warnings and geomeTRIC's output go to ``log_path``.  With
+    ``relaxed`` (the result of the same plan without frequencies), an
+    ``optimize(...)`` state starts from that optimised geometry."""
     out = empty_result(plan)
     out["log"] = log_path
     start = time.monotonic()
@@ -261,7 +281,7 @@ def compute_state(plan: StatePlan, log_path: Optional[str] = None, max_memory_mb
             saved_threads = lib.num_threads()
             lib.num_threads(int(threads))
         with contextlib.redirect_stdout(log), contextlib.redirect_stderr(log):
-            _compute(plan, out, log, log_path, max_memory_mb)
+            _compute(plan, out, log, log_path, max_memory_mb, relaxed)
         from .cache_entry import finite_result
 
         if not finite_result(out):

@@ -29,6 +29,7 @@ class RunOptions:
     max_memory_mb: Optional[float] = None  # None: PySCF's default
     time_limit_s: Optional[float] = None  # per state
     in_process: Optional[bool] = None  # None: decide from jobs and time limit
+    executor: Optional[object] = None  # an ``executors.Executor`` (None: this process or local workers)
 
     def use_workers(self) -> bool:
         if self.in_process is not None:
@@ -84,9 +85,11 @@ def _failure(plan: StatePlan, reason: str, log_path: Optional[str], took: float)
 
 
 def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOptions] = None,
-            progress: Optional[Progress] = None) -> dict[str, dict]:
+            progress: Optional[Progress] = None, on_result=None) -> dict[str, dict]:
     """Results by state name, for every plan (cached ones are not recomputed;
-    identical plans are computed once)."""
+    identical plans are computed once).  ``on_result(result)`` is called in
+    this process for each state as its result arrives (the results database
+    records them there)."""
     options = options or RunOptions()
     progress = progress or Progress(len(plans), enabled=False)
     results: dict[str, dict] = {}
@@ -97,6 +100,8 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
         if hit is not None:
             hit = dict(hit, name=plan.name, basis=plan.basis_label, cached=True, key=key)
             results[plan.name] = hit
+            if on_result is not None:  # recorded before it is shown as done
+                on_result(hit)
             progress.finished(plan.name, hit)
             continue
         todo.setdefault(key, []).append(plan)
@@ -106,17 +111,15 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
         for i, p in enumerate(todo[key]):
             r = dict(result, name=p.name, basis=p.basis_label, key=key, cached=i > 0)
             results[p.name] = r
+            if on_result is not None:
+                on_result(r)
             progress.finished(p.name, r)
 
-    with progress:
-        if not options.use_workers():
-            from .compute import compute_state
-            from .interrupt import immediate_interrupt
+    from .executors import default_executor
 
-            with immediate_interrupt():
-                _run_here(todo, cache, options, progress, finish, compute_state)
-        else:
-            _run_workers(todo, cache, options, progress, finish)
+    with progress:
+        if todo:
+            default_executor(options).run(todo, cache, options, progress, finish)
     return {p.name: results[p.name] for p in plans}
 
 

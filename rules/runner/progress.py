@@ -2,7 +2,9 @@
 
 On a terminal one status line is redrawn every half second; otherwise (a
 log file, a CI job) one line is written when a state starts and one when it
-ends, so the output stays readable.
+ends, so the output stays readable.  Runs on a cluster use the same display:
+states wait as queued until a worker picks them up, and a running state
+says where it runs.
 """
 from __future__ import annotations
 
@@ -19,6 +21,9 @@ class Progress:
         self.enabled = enabled
         self.live = enabled and hasattr(self.stream, "isatty") and self.stream.isatty()
         self.running: dict[str, float] = {}
+        self.where: dict[str, str] = {}
+        self.queued: set[str] = set()
+        self.failed = 0
         self.done = 0
         self.launched = 0
         self._lock = threading.Lock()
@@ -47,8 +52,14 @@ class Progress:
 
     def status_line(self) -> str:
         now = time.monotonic()
-        parts = [f"{name} {now - t0:.1f} s" for name, t0 in self.running.items()]
-        return f"[{self.done}/{self.total}] running: " + (", ".join(parts) if parts else "-")
+        parts = [f"{name} {now - t0:.1f} s" + (f" on {self.where[name]}" if name in self.where else "")
+                 for name, t0 in list(self.running.items())]
+        head = f"[{self.done}/{self.total}]"
+        if self.queued:
+            head += f" queued {len(self.queued)},"
+        if self.failed:
+            head += f" failed {self.failed},"
+        return head + " running: " + (", ".join(parts) if parts else "-")
 
     def _tick(self) -> None:
         while not self._stop.wait(0.5):
@@ -61,15 +72,28 @@ class Progress:
         with self._lock:
             self._write(("\r\x1b[K" if self.live else "") + text + "\n")
 
-    def started(self, name: str) -> None:
-        self.running[name] = time.monotonic()
-        self.launched += 1
+    def queue(self, name: str) -> None:
+        """The state waits for a worker (cluster runs)."""
+        self.queued.add(name)
+
+    def started(self, name: str, where: Optional[str] = None) -> None:
+        self.queued.discard(name)
+        if name not in self.running:  # a retry or a dependent step is not a new state
+            self.launched += 1
+        self.running.setdefault(name, time.monotonic())
+        if where:
+            self.where[name] = where
         if not self.live:
-            self._line(f"[{self.done}/{self.total} done] {name}: running (state {self.launched} of {self.total})")
+            on = f" on {where}" if where else ""
+            self._line(f"[{self.done}/{self.total} done] {name}: running{on} (state {self.launched} of {self.total})")
 
     def finished(self, name: str, result: dict) -> None:
+        self.queued.discard(name)
+        self.where.pop(name, None)
         t0 = self.running.pop(name, None)
         self.done += 1
+        if result.get("status") != "ok":
+            self.failed += 1
         if result.get("cached"):
             self._line(f"[{self.done}/{self.total}] {name}: cached")
             return

@@ -24,11 +24,37 @@ def deck_hash(ws: Workspace) -> str:
 
 
 def run_workspace(ws: Workspace, cache: Optional[RunCache] = None, options: Optional[RunOptions] = None,
-                  all_states: bool = False, progress_stream=None, show_progress: bool = False) -> RunReport:
+                  all_states: bool = False, progress_stream=None, show_progress: bool = False,
+                  database=None) -> RunReport:
     """Compute the states the derives need (or all) and evaluate every derive.
-    A state that cannot be mapped is reported, the others still run."""
+    A state that cannot be mapped is reported, the others still run.  With
+    ``database`` (a ``results_db.ResultsDB``), every state and derived value
+    is recorded there as it arrives."""
     cache = cache or RunCache()
     report = RunReport(ws.path, deck_hash(ws), pyscf_version(), __version__)
+    recorder = _recorder(database, report, options)
+    try:
+        _run(ws, cache, options, all_states, progress_stream, show_progress, report, recorder)
+    except BaseException:
+        if recorder is not None:
+            recorder.interrupted()
+        raise
+    if recorder is not None:
+        recorder.finish(report.derived, report.ok)
+    return report
+
+
+def _recorder(database, report: RunReport, options: Optional[RunOptions]):
+    if database is None:
+        return None
+    from .executors import default_executor
+    from .results_db import RunRecorder
+
+    where = default_executor(options or RunOptions()).description
+    return RunRecorder(database, report.deck, report.deck_hash, report.deckward_version, report.pyscf_version, where)
+
+
+def _run(ws, cache, options, all_states, progress_stream, show_progress, report: RunReport, recorder) -> None:
     plans = []
     failed_mapping: dict[str, dict] = {}
     for name in needed_states(ws, all_states):
@@ -38,12 +64,15 @@ def run_workspace(ws: Workspace, cache: Optional[RunCache] = None, options: Opti
             report.mapping_errors.append(e.located())
             failed_mapping[name] = _unmapped(ws, name, e)
     progress = Progress(len(plans), progress_stream, enabled=show_progress)
-    results = execute(plans, cache, options, progress)
+    on_result = recorder.on_result if recorder is not None else None
+    results = execute(plans, cache, options, progress, on_result=on_result)
     results.update(failed_mapping)
+    if on_result is not None:
+        for unmapped in failed_mapping.values():
+            on_result(unmapped)
     order = [n for n in needed_states(ws, all_states)]
     report.states = [results[n] for n in order if n in results]
     report.derived = [evaluate(d, results, ws.quantity_of(d)) for d in ws.derives]
-    return report
 
 
 def _unmapped(ws: Workspace, name: str, error: MappingError) -> dict:
