@@ -64,7 +64,7 @@ def probe(ctx: ProbeContext):
             reasons.append(f"its HOMO energy is {signed(homo)} eV (above zero)")
         if delta < 0:
             reasons.append(f"the delta-SCF EA is {signed(delta)} eV (the anion lies higher)")
-        message = (f"at HF/{pair.high.basis_label} the extra electron of `{pair.high.name}` is not bound: "
+        message = (f"at HF/{pair.high.basis_label}{pair.also_note()} the extra electron of `{pair.high.name}` is not bound: "
                    + " and ".join(reasons)
                    + "; a bound-looking EA from this set-up may be a basis-set artefact")
         yield finding(INFO, span, message, {
