@@ -69,6 +69,13 @@ def discover(paths: Iterable[str], config: Config) -> list[str]:
     return out
 
 
+def require_decks(files: list[str], paths: Iterable[str]) -> None:
+    """A UsageError (exit 2) when the paths hold no deck: "0 files" and
+    exit 0 would read as a clean check."""
+    if not files:
+        raise UsageError(f"nothing to check: no deck files (*.deck) in {', '.join(paths)}")
+
+
 def config_for(paths: list[str], explicit: Optional[str]) -> Config:
     known = known_rule_ids()
     if explicit is not None:
@@ -89,7 +96,7 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
                 loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None) -> CheckResult:
+                cache_dir: Optional[str] = None, probe_progress: bool = False) -> CheckResult:
     """Check every deck below ``paths``.  With ``probe``, the PySCF probes
     run too (``deckward.rules.probes``) and their findings go through the
     same severity and suppression handling.
@@ -97,8 +104,11 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     ``jobs``: worker processes (0: one per core); ``cache_dir``: a findings
     cache folder (None: no cache).  Both go through
     ``deckward.server.parallel_check``; the findings are the same either
-    way.  A loader with unsaved editor text is never cached or shared."""
+    way.  A loader with unsaved editor text is never cached or shared.
+    ``probe_progress`` shows each probe calculation on standard error (the
+    display of ``deckward run``)."""
     config = config or config_for(paths, config_path)
+    progress = probe_progress_display() if probe and probe_progress else None
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
     tasks = []
@@ -106,6 +116,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
         for path in discover([given], config):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
+    require_decks(files, paths)
     if loader is not None and loader.overlay:
         jobs, cache_dir = 1, None
     if jobs == 1 and cache_dir is None:
@@ -119,7 +130,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
             if probe:
                 from deckward.rules.probes import run_probes
 
-                extra = run_probes(ws, config)
+                extra = run_probes(ws, config, progress=progress)
             findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
         return CheckResult(files, dedupe(findings), config)
 
@@ -127,11 +138,18 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
 
     try:
         found, stats = check_tasks([Task(p, r) for p, r in tasks], config, probe=probe, jobs=jobs,
-                                   cache_dir=cache_dir, loader=loader)
+                                   cache_dir=cache_dir, loader=loader, progress=progress)
     except DeckUnreadable as e:
         raise UsageError(str(e))
     findings.extend(found)
     return CheckResult(files, dedupe(findings), config, notes=list(stats.notes), stats=stats)
+
+
+def probe_progress_display():
+    """The runner's progress display for probe calculations, on standard error."""
+    from deckward.rules.runner.progress import Progress
+
+    return Progress(0, enabled=True)
 
 
 def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:

@@ -32,7 +32,8 @@ def add_arguments(p) -> None:
 def run(args) -> int:
     from .review_batch import build_review
 
-    result = check_paths(args.paths, config_path=args.config, probe=args.probe, **scale_options(args))
+    result = check_paths(args.paths, config_path=args.config, probe=args.probe, probe_progress=True,
+                         **scale_options(args))
     review = build_review(result, title=args.title, probed=args.probe)
     if args.format == "markdown":
         from .review_markdown import render_review_markdown

@@ -44,13 +44,13 @@ def options_from(args, config):
 
 
 def run(args) -> int:
-    from deckward.grammar.findings import Severity
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.runner.cache import RunCache
     from deckward.rules.runner.results import format_report
     from deckward.rules.runner.run import run_workspace
 
     from .checking import root_for
+    from .run_gate import gate
 
     if not os.path.isfile(args.deck):
         raise UsageError(f"{args.deck}: no such deck file")
@@ -60,12 +60,9 @@ def run(args) -> int:
         ws = resolve(args.deck, Loader(), root_for(args.deck, config, args.deck))
     except OSError as e:
         raise UsageError(f"{args.deck}: cannot be read ({e.strerror or e})")
-    errors = [f for f in ws.findings if f.severity is Severity.ERROR]
-    if errors:
-        for f in errors:
-            sys.stderr.write(f"{f.span.path}:{f.span.line}:{f.span.column}: {f.rule}: {f.message}\n")
-        sys.stderr.write("deckward: the deck has errors and cannot be run (see `deckward check`)\n")
-        return 2
+    refused = gate(ws, config, sys.stderr)
+    if refused is not None:
+        return refused
     cache_dir = os.path.join(args.cache_dir, "runs") if args.cache_dir else None
     cache = RunCache(cache_dir, enabled=not args.no_cache)
     report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet)

@@ -10,6 +10,7 @@ earlier probe has done, and each calculation stops at ``probe.time_limit_s``.
 """
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, replace
 from typing import Optional
 
@@ -121,10 +122,12 @@ def _electrons(plan: StatePlan) -> int:
 class ProbeContext:
     """Shared state of one ``run_probes`` call."""
 
-    def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None) -> None:
+    def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None,
+                 progress=None) -> None:
         from ..runner.cache import RunCache
 
         self.ws = ws
+        self.progress = progress  # a runner Progress shared by the command (None: no display)
         self.config = config
         self.settings = ProbeSettings.from_config(config)
         self.cache = cache or RunCache()
@@ -176,7 +179,10 @@ class ProbeContext:
             if reason is not None:
                 raise ProbeSkipped(reason)
             options = RunOptions(jobs=1, time_limit_s=self.settings.time_limit_s)
-            self._results[key] = execute([plan], self.cache, options)[plan.name]
+            shown = plan.with_changes(name=f"{os.path.basename(self.ws.path)}: HF/{plan.basis_label} {plan.name}")
+            if self.progress is not None:
+                self.progress.grow()
+            self._results[key] = execute([shown], self.cache, options, self.progress)[shown.name]
         result = self._results[key]
         if result["status"] != "ok":
             raise ProbeSkipped(f"HF/{plan.basis_label} for `{plan.name}` {result['status']}: {result['reason']}")
