@@ -23,7 +23,7 @@ _NAME_RE = re.compile(r"^[A-Za-z_][A-Za-z0-9_]*$")
 LEVEL_KEYS = ("method", "basis", "reference", "frozen_core")
 KEYS = {
     "study": ("goal", "kind", "compare", "note"),
-    "geometry": ("units",),
+    "geometry": ("units", "file"),
     "basis_set": ("from",),
     "level": LEVEL_KEYS,
     "state": ("geometry", "level", "charge", "multiplicity", "frequencies") + LEVEL_KEYS,
@@ -301,7 +301,20 @@ class _Builder:
             )
         lb, rb = tree.children[2], tree.children[-1]
         body = self.index.span(sp(lb).end, max(sp(lb).end, sp(rb).start))
-        return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body)
+        file = None
+        if "file" in found:
+            value = found["file"][1]
+            if value.data != "string_value":
+                self.error("invalid-value", sp(value), '`file` takes a quoted path, e.g. file = "no2.xyz"')
+            else:
+                file = m.Located(_unquote(value.children[0]), sp(value.children[0]))
+                if atoms:
+                    self.error("invalid-value", file.span, "a geometry takes its atoms from `file` or from its "
+                               "own lines, not both")
+                if units is not None:
+                    self.error("invalid-value", units.span, "an .xyz file is in angstrom: `units` does not apply "
+                               "to a geometry read from `file`")
+        return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body, file)
 
     def basis_set(self, tree, sp) -> m.BasisSet:
         name_tok = tree.children[1]

@@ -98,6 +98,8 @@ class Geometry:
     units: Optional[Located[str]]  # None: angstrom by default
     atoms: tuple[Atom, ...]
     body_span: Span  # the text between the braces
+    file: Optional[Located[str]] = None  # ``file = "x.xyz"``: atoms read from it at resolution (angstrom)
+    file_path: Optional[str] = None  # the .xyz file's path once resolution has read it
 
     @property
     def unit(self) -> str:

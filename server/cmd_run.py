@@ -24,6 +24,7 @@ def add_arguments(p) -> None:
     p.add_argument("--no-cache", action="store_true", help="recompute every state and store nothing")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress display on standard error")
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the deck)")
+    p.add_argument("--write-geometries", metavar="DIR", help="write each optimised geometry to DIR/<state>.xyz")
 
 
 def _positive(name: str, value):
@@ -74,4 +75,11 @@ def run(args) -> int:
                 f.write("\n")
         except OSError as e:
             raise UsageError(f"{args.json}: cannot be written ({e.strerror or e})")
+    if args.write_geometries:
+        from .geometry_output import write_geometries
+
+        written = write_geometries(report, args.write_geometries)
+        sys.stderr.write(f"deckward: wrote {len(written)} optimised geometr{'y' if len(written) == 1 else 'ies'} to "
+                         f"{args.write_geometries}\n" if written else "deckward: no state was optimised "
+                         "(optimize(...)): no geometry written\n")
     return 0 if report.ok else 1

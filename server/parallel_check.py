@@ -81,6 +81,9 @@ def used_paths(ws: Workspace) -> list[str]:
     for pf in ws.files:
         for use in pf.deck.uses:
             add(os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value)))
+        for g in pf.deck.geometries:
+            if g.file is not None:  # an .xyz geometry, read or not (creating it changes the findings)
+                add(os.path.normpath(os.path.join(os.path.dirname(pf.path), g.file.value)))
     return out
 
 

@@ -16,10 +16,12 @@ from .results import RunReport
 
 
 def deck_hash(ws: Workspace) -> str:
-    """SHA-256 over the texts of the deck and every file it uses."""
+    """SHA-256 over the texts of the deck and every file it uses (.xyz geometries included)."""
     h = hashlib.sha256()
     for f in ws.files:
         h.update(f.digest.encode("ascii"))
+    for _, digest in ws.geometry_files:
+        h.update(digest.encode("ascii"))
     return h.hexdigest()
 
 
