@@ -25,6 +25,7 @@ COMMANDS = {
     "run": "deckward.server.cmd_run",
     "probe": "deckward.server.cmd_probe",
     "review": "deckward.server.cmd_review",
+    "new": "deckward.server.cmd_new",
 }
 
 
