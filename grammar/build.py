@@ -414,7 +414,33 @@ class _Builder:
         expr = self.expr(expr_tree, sp)
         if expr is None:
             return None
-        return m.Derive(m.Located(str(name_tok), sp(name_tok)), sp(tree), quantity, expr, unit)
+        reference = None
+        if getattr(kids[-1], "data", None) == "reference_clause":
+            reference = self.reference(kids[-1], sp)
+        return m.Derive(m.Located(str(name_tok), sp(name_tok)), sp(tree), quantity, expr, unit, reference)
+
+    def reference(self, tree, sp) -> Optional[m.MeasuredReference]:
+        kids = tree.children
+        value = float(kids[1])
+        uncertainty = None
+        i = 2
+        if getattr(kids[i], "type", None) == "PLUSMINUS":
+            uncertainty = float(kids[i + 1])
+            if uncertainty < 0:
+                self.error("invalid-value", sp(kids[i + 1]), f"an uncertainty is not negative: `{kids[i + 1]}`")
+                return None
+            i += 2
+        u, source = kids[i], kids[i + 1]
+        low = str(u).lower()
+        if low not in m.ENERGY_UNITS:
+            self.error("invalid-value", sp(u), f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})"
+                       + did_you_mean(low, m.ENERGY_UNITS))
+            return None
+        text = _unquote(source)
+        if not text.strip():
+            self.error("invalid-value", sp(source), "a reference value names its source (who measured it, where)")
+            return None
+        return m.MeasuredReference(value, uncertainty, m.Located(low, sp(u)), m.Located(text, sp(source)), sp(tree))
 
     def expr(self, t, sp) -> Optional[m.Expr]:
         kind = t.data

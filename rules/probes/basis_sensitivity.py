@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from deckward.grammar.findings import RuleInfo, Severity
 
-from .common import ProbeContext, ProbeSkipped, augmented_plan, finding, signed, skipped
+from .common import ProbeContext, ProbeSkipped, augmented_plan, experiment_evidence, finding, signed, skipped
 
 INFO = RuleInfo(
     id="probe-basis-sensitivity",
@@ -86,4 +86,5 @@ def probe(ctx: ProbeContext):
             "orbital_estimate_augmented_ev": round(o1, 6),
             "shift_ev": round(shift, 6),
             "threshold_ev": threshold,
+            **experiment_evidence(ctx, pair.derive, d0),
         })

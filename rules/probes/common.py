@@ -283,6 +283,19 @@ class ProbeContext:
         return delta, units.from_hartree(orb, "ev")
 
 
+def experiment_evidence(ctx: "ProbeContext", derive: m.Derive, computed_ev: float) -> dict:
+    """The measured value of a derive (deck's reference clause or the
+    reference table) for a probe's evidence, with the probe value's
+    deviation; empty when none is known."""
+    from ..comparison import measured_for
+
+    measured = measured_for(ctx.ws, derive)
+    if measured is None:
+        return {}
+    return {"experimental_ev": round(measured.value_ev, 6), "experimental_source": measured.source,
+            "deviation_from_experiment_ev": round(computed_ev - measured.value_ev, 6)}
+
+
 def finding(info: RuleInfo, span: Span, message: str, evidence: dict, severity: Optional[Severity] = None) -> Finding:
     return Finding(info.id, severity or info.severity, message, span, evidence=tuple(evidence.items()))
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from deckward.grammar.findings import RuleInfo, Severity
 
-from .common import ProbeContext, ProbeSkipped, finding, signed, skipped
+from .common import ProbeContext, ProbeSkipped, experiment_evidence, finding, signed, skipped
 
 INFO = RuleInfo(
     id="probe-koopmans-relaxation",
@@ -58,4 +58,5 @@ def probe(ctx: ProbeContext):
             "delta_scf_ie_ev": round(delta, 6),
             "relaxation_ev": round(relaxation, 6),
             "cation_constructed": bool(pair.constructed),
+            **experiment_evidence(ctx, pair.derive, delta),
         })

@@ -7,6 +7,7 @@ from typing import Optional
 from deckward import __version__
 from deckward.grammar.resolve import Workspace
 
+from ..comparison import attach_comparisons
 from .cache import RunCache, pyscf_version
 from .derive_eval import evaluate
 from .mapping import MappingError, needed_states, plan_state
@@ -45,6 +46,7 @@ def run_workspace(ws: Workspace, cache: Optional[RunCache] = None, options: Opti
     order = [n for n in needed_states(ws, all_states)]
     report.states = [results[n] for n in order if n in results]
     report.derived = [evaluate(d, results, ws.quantity_of(d)) for d in ws.derives]
+    attach_comparisons(ws, report.derived)
     return report
 
 
