@@ -26,6 +26,7 @@ COMMANDS = {
     "probe": "deckward.server.cmd_probe",
     "review": "deckward.server.cmd_review",
     "new": "deckward.server.cmd_new",
+    "converge": "deckward.server.cmd_converge",
 }
 
 
