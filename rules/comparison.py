@@ -165,3 +165,21 @@ def comparison_lines(derived: list) -> list[str]:
     if lines:
         lines.append(CAUTION)
     return lines
+
+
+def compare_recorded(deck_path: str, derive_name: str, value_hartree: Optional[float]) -> Optional[dict]:
+    """The comparison of a recorded derived value (a results-store row:
+    deck path, derive name, value in hartree) as the dict `run --json`
+    gives under ``experiment``; None when the deck can no longer be read,
+    has no such derive, or there is nothing to compare with."""
+    from deckward.grammar.resolve import Loader, resolve
+
+    try:
+        ws = resolve(deck_path, Loader())
+    except OSError:
+        return None
+    derive = next((d for d in ws.derives if d.name.value == derive_name), None)
+    if derive is None or value_hartree is None:
+        return None
+    found = compare_derive(ws, derive, units.from_hartree(value_hartree, "ev"))
+    return None if found is None else found.to_dict()

@@ -111,3 +111,12 @@ def test_review_shows_experiment_beside_probe_numbers_with_the_caution(tmp_path,
     assert "experimental (eV)</th><td class=\"num\">3.401</td>" in html
     assert comparison.CAUTION in html
     assert "(experiment +3.40 eV)" in html  # the plot's text alternative marks it too
+
+
+def test_recorded_value_is_compared_from_its_deck(tmp_path):
+    deck = write_deck(tmp_path, F_DECK)
+    found = comparison.compare_recorded(deck, "ea", 1.2 / EV)
+    assert found["value_ev"] == pytest.approx(F_EA, abs=1e-7)
+    assert found["deviation_ev"] == pytest.approx(1.2 - F_EA, abs=1e-6)
+    assert comparison.compare_recorded(deck, "nope", 0.1) is None
+    assert comparison.compare_recorded(str(tmp_path / "gone.deck"), "ea", 0.1) is None
