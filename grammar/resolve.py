@@ -17,9 +17,8 @@ from typing import Callable, Optional
 from . import model as m
 from .build import build_deck, closest_names, did_you_mean
 from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
+from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
-
-MAX_FILE_BYTES = 20 * 1024 * 1024
 
 
 @dataclass(frozen=True)
@@ -79,8 +78,7 @@ class Loader:
         key = os.path.abspath(path)
         if key in self.overlay:
             return self.overlay[key], None
-        with open(path, "rb") as f:
-            data = f.read(MAX_FILE_BYTES + 1)
+        data = read_regular(path, MAX_FILE_BYTES)  # regular files only: a FIFO never blocks
         return decode(data[:MAX_FILE_BYTES], path)
 
     def load(self, path: str) -> ParsedFile:
@@ -88,8 +86,7 @@ class Loader:
         key = os.path.abspath(path)
         if key in self.overlay:
             return self.parse_text(path, self.overlay[key])
-        with open(path, "rb") as f:
-            data = f.read(MAX_FILE_BYTES + 1)
+        data = read_regular(path, MAX_FILE_BYTES)
         extra = None
         if len(data) > MAX_FILE_BYTES:
             data = data[:MAX_FILE_BYTES]
@@ -257,6 +254,11 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
     # -- load use files (depth first, each once) -----------------------------
     def visit(pf: ParsedFile, stack: tuple[str, ...]) -> None:
         for use in pf.deck.uses:
+            problem = path_problem(use.path.value)
+            if problem is not None:
+                findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                        f"`{shown(use.path.value)}` cannot be read ({problem})", use.path.span))
+                continue
             target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
             real = os.path.realpath(target)
             where = use.path.span
@@ -279,7 +281,7 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
                 continue
             except OSError as e:
                 reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
-                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{use.path.value}` {reason}", where))
+                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{shown(use.path.value)}` {reason}", where))
                 continue
             files.append(used)
             findings.extend(used.findings)
@@ -427,6 +429,24 @@ def _with_geometry_files(pf: ParsedFile, loader: Loader, root_dir: str, findings
         geometries.append(replace(g, atoms=atoms, file_path=target))
     deck = replace(pf.deck, geometries=tuple(geometries))
     return ParsedFile(pf.path, deck, pf.findings, pf.index, pf.digest)
+
+
+def shown(text: str) -> str:
+    """``text`` fit for a message: control characters and lone surrogates
+    written as escapes, so a message can always be printed and encoded."""
+    out = []
+    for ch in text:
+        code = ord(ch)
+        if code < 0x20 or code == 0x7F or 0xD800 <= code <= 0xDFFF:
+            out.append(f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def inside_root(path: str, root: str) -> bool:
+    """``path`` lies in the folder ``root`` (both already resolved)."""
+    return _inside(path, root)
 
 
 def _inside(path: str, root: str) -> bool:

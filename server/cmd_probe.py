@@ -27,7 +27,7 @@ def add_arguments(p) -> None:
 def run(args) -> int:
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.engine import check_workspace, dedupe
-    from deckward.rules.probes import PROBE_RULES, run_probes
+    from deckward.rules.probes import PROBE_RULES, run_probes, unprobed_reason
     from deckward.rules.runner.cache import RunCache
 
     check_format(args)
@@ -36,8 +36,8 @@ def run(args) -> int:
     ids = {info.id for info in PROBE_RULES}
     progress = None if args.quiet else probe_progress_display()
     loader = Loader()
-    files, findings = [], list(config.findings)
-    tasks = [(path, given) for given in args.paths for path in discover([given], config)]
+    files, findings, notes = [], list(config.findings), []
+    tasks = [(path, given) for given in args.paths for path in discover([given], config, notes)]
     require_decks([p for p, _ in tasks], args.paths)
     with_states = 0
     for path, given in tasks:
@@ -52,8 +52,14 @@ def run(args) -> int:
         if errors:
             sys.stderr.write(f"deckward: {path} has errors and is not probed (see `deckward check`)\n")
             continue
+        unprobed = unprobed_reason(ws)
+        if unprobed is not None:
+            notes.append(f"deckward: {path} was not probed: {unprobed}")
+            continue
         extra = run_probes(ws, config, cache, progress=progress)
         findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
     if not with_states:
         raise UsageError(f"nothing to probe: no deck in {', '.join(args.paths)} has a state")
-    return report(args, CheckResult(files, dedupe(findings), config))
+    if notes and getattr(args, "format", "text") != "text":
+        sys.stderr.write("".join(n + "\n" for n in notes))
+    return report(args, CheckResult(files, dedupe(findings), config, notes=notes))
