@@ -393,12 +393,12 @@ def _with_geometry_files(pf: ParsedFile, loader: Loader, root_dir: str, findings
     of its .xyz file (path relative to the deck, inside the workspace root,
     like ``use``); problems become findings, located in the .xyz file when
     they are in its text."""
-    from dataclasses import replace
-
-    from .xyz import parse_xyz
-
     if not any(g.file is not None for g in pf.deck.geometries):
         return pf
+    from dataclasses import replace
+
+    from .xyz import parse_xyz  # only for decks that read .xyz files (the cold start stays small)
+
     geometries = []
     for g in pf.deck.geometries:
         if g.file is None or g.atoms:

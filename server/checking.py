@@ -76,10 +76,11 @@ def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] 
     return out
 
 
-def require_decks(files: list[str], paths: Iterable[str]) -> None:
+def require_decks(files: list[str], paths: Iterable[str], skipped: Iterable[str] = ()) -> None:
     """A UsageError (exit 2) when the paths hold no deck: "0 files" and
-    exit 0 would read as a clean check."""
-    if not files:
+    exit 0 would read as a clean check.  Decks skipped with a note (links
+    out of the workspace) are not "nothing": the note says what happened."""
+    if not files and not list(skipped):
         raise UsageError(f"nothing to check: no deck files (*.deck) in {', '.join(paths)}")
 
 
@@ -148,7 +149,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
         for path in discover([given], config, skipped):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
-    require_decks(files, paths)
+    require_decks(files, paths, skipped)
     if (loader is not None and loader.overlay) or len(tasks) < cache_from:
         cache_dir = None
     if loader is not None and loader.overlay:

@@ -38,7 +38,7 @@ def run(args) -> int:
     loader = Loader()
     files, findings, notes = [], list(config.findings), []
     tasks = [(path, given) for given in args.paths for path in discover([given], config, notes)]
-    require_decks([p for p, _ in tasks], args.paths)
+    require_decks([p for p, _ in tasks], args.paths, notes)
     with_states = 0
     for path, given in tasks:
         files.append(path)
@@ -58,7 +58,7 @@ def run(args) -> int:
             continue
         extra = run_probes(ws, config, cache, progress=progress)
         findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
-    if not with_states:
+    if tasks and not with_states:
         raise UsageError(f"nothing to probe: no deck in {', '.join(args.paths)} has a state")
     if notes and getattr(args, "format", "text") != "text":
         sys.stderr.write("".join(n + "\n" for n in notes))
