@@ -7,6 +7,7 @@ a message that names the alternatives (``unknown-key``, ``invalid-value``,
 """
 from __future__ import annotations
 
+import math
 import re
 from typing import Callable, Optional
 
@@ -24,7 +25,7 @@ _NAME_RE = re.compile(r"^[A-Za-z_][A-Za-z0-9_]*$")
 LEVEL_KEYS = ("method", "basis", "reference", "frozen_core")
 KEYS = {
     "study": ("goal", "kind", "compare", "note"),
-    "geometry": ("units",),
+    "geometry": ("units", "file"),
     "basis_set": ("from",),
     "level": LEVEL_KEYS,
     "state": ("geometry", "level", "charge", "multiplicity", "frequencies") + LEVEL_KEYS,
@@ -341,10 +342,23 @@ class _Builder:
             )
         lb, rb = tree.children[2], tree.children[-1]
         body = self.index.span(sp(lb).end, max(sp(lb).end, sp(rb).start))
+        file = None
+        if "file" in found:
+            value = found["file"][1]
+            if value.data != "string_value":
+                self.error("invalid-value", sp(value), '`file` takes a quoted path, e.g. file = "no2.xyz"')
+            else:
+                file = m.Located(_unquote(value.children[0]), sp(value.children[0]))
+                if atoms:
+                    self.error("invalid-value", file.span, "a geometry takes its atoms from `file` or from its "
+                               "own lines, not both")
+                if units is not None:
+                    self.error("invalid-value", units.span, "an .xyz file is in angstrom: `units` does not apply "
+                               "to a geometry read from `file`")
         if not usable:  # like a statement that does not parse: left out, its name known
             self.unusable.add(str(name_tok))
             return None
-        return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body)
+        return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body, file)
 
     def basis_set(self, tree, sp) -> m.BasisSet:
         name_tok = tree.children[1]
@@ -447,7 +461,36 @@ class _Builder:
         expr = self.expr(expr_tree, sp)
         if expr is None:
             return None
-        return m.Derive(m.Located(str(name_tok), sp(name_tok)), sp(tree), quantity, expr, unit)
+        reference = None
+        if getattr(kids[-1], "data", None) == "reference_clause":
+            reference = self.reference(kids[-1], sp)
+        return m.Derive(m.Located(str(name_tok), sp(name_tok)), sp(tree), quantity, expr, unit, reference)
+
+    def reference(self, tree, sp) -> Optional[m.MeasuredReference]:
+        kids = tree.children
+        value = float(kids[1])
+        if not math.isfinite(value):
+            self.error("invalid-value", sp(kids[1]), f"a reference value is a finite number, not `{kids[1]}`")
+            return None
+        uncertainty = None
+        i = 2
+        if getattr(kids[i], "type", None) == "PLUSMINUS":
+            uncertainty = float(kids[i + 1])
+            if uncertainty < 0:
+                self.error("invalid-value", sp(kids[i + 1]), f"an uncertainty is not negative: `{kids[i + 1]}`")
+                return None
+            i += 2
+        u, source = kids[i], kids[i + 1]
+        low = str(u).lower()
+        if low not in m.ENERGY_UNITS:
+            self.error("invalid-value", sp(u), f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})"
+                       + did_you_mean(low, m.ENERGY_UNITS))
+            return None
+        text = _unquote(source)
+        if not text.strip():
+            self.error("invalid-value", sp(source), "a reference value names its source (who measured it, where)")
+            return None
+        return m.MeasuredReference(value, uncertainty, m.Located(low, sp(u)), m.Located(text, sp(source)), sp(tree))
 
     def expr(self, t, sp) -> Optional[m.Expr]:
         kind = t.data

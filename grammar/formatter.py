@@ -302,8 +302,12 @@ class _Statement:
             parts += ["as", str(kids[i + 1])]
             i += 2
         parts += ["=", self.expr(kids[i], 0)]
-        if i + 1 < len(kids):
-            parts += ["in", str(kids[i + 2])]
+        rest = kids[i + 1:]
+        if rest and _is_token(rest[0]) and rest[0].type == "IN":
+            parts += ["in", str(rest[1])]
+            rest = rest[2:]
+        if rest:  # the reference clause, its tokens as written
+            parts += [str(tok) for tok in rest[0].children]
         return " ".join(parts)
 
     def wrapped(self, node) -> bool:

@@ -98,6 +98,8 @@ class Geometry:
     units: Optional[Located[str]]  # None: angstrom by default
     atoms: tuple[Atom, ...]
     body_span: Span  # the text between the braces
+    file: Optional[Located[str]] = None  # ``file = "x.xyz"``: atoms read from it at resolution (angstrom)
+    file_path: Optional[str] = None  # the .xyz file's path once resolution has read it
 
     @property
     def unit(self) -> str:
@@ -225,12 +227,25 @@ def walk(expr: Expr):
 
 
 @dataclass(frozen=True)
+class MeasuredReference:
+    """``reference 3.401 +- 0.001 ev "source"`` after a derive: the value
+    the deck compares with, in its own unit (it overrides the reference table)."""
+
+    value: float
+    uncertainty: Optional[float]
+    unit: Located[str]
+    source: Located[str]
+    span: Span
+
+
+@dataclass(frozen=True)
 class Derive:
     name: Located[str]
     span: Span
     quantity: Optional[Located[str]]  # ``as QUANTITY``
     expr: Expr
     unit: Optional[Located[str]]  # ``in UNIT``; None means hartree
+    reference: Optional[MeasuredReference] = None
 
     @property
     def unit_name(self) -> str:

@@ -79,6 +79,15 @@ class Loader:
         self._files[key] = parsed
         return parsed
 
+    def read_text(self, path: str) -> tuple[str, Optional[Finding]]:
+        """The text of a non-deck file (an .xyz geometry): the editor's
+        buffer when open, else the disk (raises OSError)."""
+        key = os.path.abspath(path)
+        if key in self.overlay:
+            return self.overlay[key], None
+        data = read_regular(path, MAX_FILE_BYTES)  # regular files only: a FIFO never blocks
+        return decode(data[:MAX_FILE_BYTES], path)
+
     def load(self, path: str) -> ParsedFile:
         """Parse the file at ``path`` (raises OSError if it cannot be read)."""
         key = os.path.abspath(path)
@@ -161,6 +170,7 @@ class Workspace:
     references: tuple[Reference, ...] = ()
     findings: tuple[Finding, ...] = ()  # parse findings of all files + resolution findings
     broken_names: frozenset = frozenset()
+    geometry_files: tuple[tuple[str, str], ...] = ()  # (path, sha256) of every .xyz file read
 
     @property
     def path(self) -> str:
@@ -302,6 +312,9 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
         loaded.add(real)
         findings.extend(used.findings)
         stack.append((used, iter(used.deck.uses), chain + (real,)))
+    geometry_files: list[tuple[str, str]] = []
+    files = [_with_geometry_files(pf, loader, root_dir, findings, geometry_files) for pf in files]
+    root = files[0]
 
     # -- name table ------------------------------------------------------------
     definitions: dict[str, Definition] = {}
@@ -408,7 +421,51 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
 
     findings.sort(key=Finding.sort_key)
     return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings),
-                     frozenset(broken))
+                     frozenset(broken), tuple(geometry_files))
+
+
+def _with_geometry_files(pf: ParsedFile, loader: Loader, root_dir: str, findings: list,
+                         read: list) -> ParsedFile:
+    """The file with every ``geometry { file = "x.xyz" }`` holding the atoms
+    of its .xyz file (path relative to the deck, inside the workspace root,
+    like ``use``); problems become findings, located in the .xyz file when
+    they are in its text."""
+    if not any(g.file is not None for g in pf.deck.geometries):
+        return pf
+    from dataclasses import replace
+
+    from .xyz import parse_xyz  # only for decks that read .xyz files (the cold start stays small)
+
+    geometries = []
+    for g in pf.deck.geometries:
+        if g.file is None or g.atoms:
+            geometries.append(g)
+            continue
+        target = os.path.normpath(os.path.join(os.path.dirname(pf.path), g.file.value))
+        where = g.file.span
+        problem = None
+        if not _inside(os.path.realpath(target), root_dir):
+            problem = f"`{g.file.value}` is outside the workspace root {_short(root_dir)}"
+        else:
+            try:
+                text, bad = loader.read_text(target)
+            except IsADirectoryError:
+                problem = f"`{g.file.value}` is a folder, not an .xyz file"
+            except OSError as e:
+                reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
+                problem = f"`{g.file.value}` {reason}"
+        if problem is not None:
+            findings.append(Finding("use-outside-workspace", Severity.ERROR, problem, where))
+            geometries.append(g)
+            continue
+        atoms, found, _ = parse_xyz(target, text)
+        if bad is not None:
+            found.insert(0, bad)
+        findings.extend(found)
+        read.append((target, hashlib.sha256(text.encode("utf-8", "surrogatepass")).hexdigest()))
+        geometries.append(replace(g, atoms=atoms, file_path=target))
+    deck = replace(pf.deck, geometries=tuple(geometries))
+    return ParsedFile(pf.path, deck, pf.findings, pf.index, pf.digest)
 
 
 def shown(text: str) -> str:

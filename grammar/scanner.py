@@ -17,7 +17,7 @@ STATEMENT_KEYWORDS = frozenset({"use", "study", "geometry", "basis_set", "level"
 _CONTINUATIONS = frozenset(STATEMENT_KEYWORDS | {"as", "in", "=", "(", ",", ":", "+", "-", "*", "/"})
 
 # Words that continue a statement on a later line (`derive ea\n  as ...`).
-_INFIXES = frozenset({"as", "in"})
+_INFIXES = frozenset({"as", "in", "reference"})  # `reference`: a derive's measured value
 
 _TOKEN = re.compile(
     r"""

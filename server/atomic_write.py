@@ -215,3 +215,51 @@ def _fsync_folder(folder: str) -> None:
         pass
     finally:
         os.close(fd)
+
+
+def write_new(path: str, data: bytes, overwrite: bool = False) -> None:
+    """Write a whole file at once: the bytes go to a temporary file in the
+    same folder, fsynced, then take the name in one step, so nobody ever
+    sees half a file.  Without ``overwrite`` an existing file is refused
+    (``WriteRefused``), also when it appears while writing (the name is
+    taken with a hard link, which fails if it exists)."""
+    folder = os.path.dirname(os.path.abspath(path))
+    if not os.path.isdir(folder):
+        raise WriteRefused("its folder does not exist")
+    if not overwrite and os.path.lexists(path):
+        raise WriteRefused("it exists (use --force to replace it)")
+    tmp = _own_name(os.path.abspath(path), "new")  # named like the fixer's, so stale ones are cleaned alike
+    try:
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o600)
+    except OSError as e:
+        raise WriteRefused(f"no temporary file can be made in its folder ({e.strerror or e})")
+    try:
+        try:
+            with os.fdopen(fd, "wb") as f:
+                f.write(data)
+                f.flush()
+                os.fsync(f.fileno())
+                os.fchmod(f.fileno(), 0o666 & ~_umask())
+        except OSError as e:
+            raise WriteRefused(f"it could not be written ({e.strerror or e})")
+        try:
+            if overwrite:
+                os.replace(tmp, path)
+            else:
+                os.link(tmp, path)
+        except FileExistsError:
+            raise WriteRefused("it exists (use --force to replace it)")
+        except OSError as e:
+            raise WriteRefused(f"it could not be written ({e.strerror or e})")
+        _fsync_folder(folder)
+    finally:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask

@@ -76,6 +76,14 @@ def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] 
     return out
 
 
+def require_decks(files: list[str], paths: Iterable[str], skipped: Iterable[str] = ()) -> None:
+    """A UsageError (exit 2) when the paths hold no deck: "0 files" and
+    exit 0 would read as a clean check.  Decks skipped with a note (links
+    out of the workspace) are not "nothing": the note says what happened."""
+    if not files and not list(skipped):
+        raise UsageError(f"nothing to check: no deck files (*.deck) in {', '.join(paths)}")
+
+
 def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = None) -> list[str]:
     from deckward.grammar.resolve import inside_root
     from deckward.grammar.safe_open import is_regular_file
@@ -115,7 +123,7 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
                 loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None, cache_from: int = 1) -> CheckResult:
+                cache_dir: Optional[str] = None, cache_from: int = 1, probe_progress: bool = False) -> CheckResult:
     """Check every deck below ``paths``.  With ``probe``, the PySCF probes
     run too (``deckward.rules.probes``) and their findings go through the
     same severity and suppression handling.
@@ -128,8 +136,11 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     loader with unsaved editor text is never cached or shared.
 
     Few decks without a cache are checked right here: the single-deck path
-    imports neither the parallel checker nor the cache."""
+    imports neither the parallel checker nor the cache.  ``probe_progress``
+    shows each probe calculation on standard error (the display of
+    ``deckward run``)."""
     config = config or config_for(paths, config_path)
+    progress = probe_progress_display() if probe and probe_progress else None
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
     tasks = []
@@ -138,6 +149,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
         for path in discover([given], config, skipped):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
+    require_decks(files, paths, skipped)
     if (loader is not None and loader.overlay) or len(tasks) < cache_from:
         cache_dir = None
     if loader is not None and loader.overlay:
@@ -157,7 +169,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
             if probe:
                 from deckward.rules.probes import run_probes
 
-                extra = run_probes(ws, config)
+                extra = run_probes(ws, config, progress=progress)
             findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
         return CheckResult(files, dedupe(findings), config, notes=skipped)
 
@@ -165,7 +177,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
 
     try:
         found, stats = check_tasks([Task(p, r) for p, r in tasks], config, probe=probe, jobs=jobs,
-                                   cache_dir=cache_dir, loader=loader)
+                                   cache_dir=cache_dir, loader=loader, progress=progress)
     except DeckUnreadable as e:
         raise UsageError(str(e))
     findings.extend(found)
@@ -184,6 +196,13 @@ def release_unshared(loader: Loader, ws, shared: set[str]) -> None:
         shared.add(os.path.abspath(pf.path))
     if os.path.abspath(ws.root.path) not in shared:
         loader.forget(ws.root.path)
+
+
+def probe_progress_display():
+    """The runner's progress display for probe calculations, on standard error."""
+    from deckward.rules.runner.progress import Progress
+
+    return Progress(0, enabled=True)
 
 
 def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:

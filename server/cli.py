@@ -27,6 +27,8 @@ COMMANDS = {
     "probe": "deckward.server.cmd_probe",
     "review": "deckward.server.cmd_review",
     "results": "deckward.server.cmd_results",
+    "new": "deckward.server.cmd_new",
+    "converge": "deckward.server.cmd_converge",
 }
 
 

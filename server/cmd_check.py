@@ -35,7 +35,8 @@ def run(args) -> int:
 
         result, extra_output = run_fixes(args)
     else:
-        result = check_paths(args.paths, config_path=args.config, probe=args.probe, **scale_options(args))
+        result = check_paths(args.paths, config_path=args.config, probe=args.probe, probe_progress=True,
+                             **scale_options(args))
     if extra_output:  # the diff goes to standard output even when the report goes to --output
         sys.stdout.write(extra_output)
     return report(args, result)

@@ -10,7 +10,8 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import CheckResult, UsageError, config_for, discover, root_for
+from .checking import (CheckResult, UsageError, config_for, discover, probe_progress_display, require_decks,
+                       root_for)
 from .executor_options import add_executor_arguments, executor_from, probes_on
 from .report_options import add_report_arguments, check_format, report
 
@@ -19,6 +20,7 @@ HELP = "run the PySCF probes (cheap Hartree-Fock checks with numbers) on deck fi
 
 def add_arguments(p) -> None:
     add_report_arguments(p, paths_metavar="DECK")
+    p.add_argument("--quiet", "-q", action="store_true", help="no progress display on standard error")
     p.add_argument("--cache-dir", metavar="DIR",
                    help="results cache (default: $DECKWARD_CACHE_DIR/runs or ~/.cache/deckward/runs)")
     p.add_argument("--jobs", "-j", type=int, default=1, metavar="N", help="workers of --cluster local (default 1)")
@@ -40,26 +42,32 @@ def _probe_all(args, config) -> int:
 
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}
+    progress = None if args.quiet else probe_progress_display()
     loader = Loader()
     files, findings, notes = [], list(config.findings), []
-    for given in args.paths:
-        for path in discover([given], config, notes):
-            files.append(path)
-            try:
-                ws = resolve(path, loader, root_for(path, config, given))
-            except OSError as e:
-                raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
-            errors = [f for f in ws.findings if f.severity.value == "error"]
-            findings.extend(errors)
-            if errors:
-                sys.stderr.write(f"deckward: {path} has errors and is not probed (see `deckward check`)\n")
-                continue
-            unprobed = unprobed_reason(ws)
-            if unprobed is not None:
-                notes.append(f"deckward: {path} was not probed: {unprobed}")
-                continue
-            extra = run_probes(ws, config, cache)
-            findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
+    tasks = [(path, given) for given in args.paths for path in discover([given], config, notes)]
+    require_decks([p for p, _ in tasks], args.paths, notes)
+    with_states = 0
+    for path, given in tasks:
+        files.append(path)
+        try:
+            ws = resolve(path, loader, root_for(path, config, given))
+        except OSError as e:
+            raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
+        with_states += bool(ws.states)
+        errors = [f for f in ws.findings if f.severity.value == "error"]
+        findings.extend(errors)
+        if errors:
+            sys.stderr.write(f"deckward: {path} has errors and is not probed (see `deckward check`)\n")
+            continue
+        unprobed = unprobed_reason(ws)
+        if unprobed is not None:
+            notes.append(f"deckward: {path} was not probed: {unprobed}")
+            continue
+        extra = run_probes(ws, config, cache, progress=progress)
+        findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
+    if tasks and not with_states:
+        raise UsageError(f"nothing to probe: no deck in {', '.join(args.paths)} has a state")
     if notes and getattr(args, "format", "text") != "text":
         sys.stderr.write("".join(n + "\n" for n in notes))
     return report(args, CheckResult(files, dedupe(findings), config, notes=notes))

@@ -40,7 +40,7 @@ def run(args) -> int:
     scale = scale_options(args)  # probes run in this process, whatever --jobs says
     config = config_for(args.paths, args.config)
     with executor_from(args, config, max(1, args.jobs)) as executor, probes_on(executor):
-        result = check_paths(args.paths, config=config, probe=args.probe, **scale)
+        result = check_paths(args.paths, config=config, probe=args.probe, probe_progress=True, **scale)
     review = build_review(result, title=args.title, probed=args.probe)
     _attach_recorded(args, review)
     if args.format == "markdown":

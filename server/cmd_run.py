@@ -28,6 +28,7 @@ def add_arguments(p) -> None:
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the deck)")
     add_database_arguments(p)
     add_executor_arguments(p)
+    p.add_argument("--write-geometries", metavar="DIR", help="write each optimised geometry to DIR/<state>.xyz")
     p.add_argument("--force", action="store_true",
                    help="run states above run.max_basis_functions or the memory estimate anyway")
 
@@ -61,13 +62,13 @@ def options_from(args, config):
 
 
 def run(args) -> int:
-    from deckward.grammar.findings import Severity
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.runner.cache import RunCache
     from deckward.rules.runner.results import format_report
     from deckward.rules.runner.run import run_workspace
 
     from .checking import root_for
+    from .run_gate import gate
 
     if not os.path.isfile(args.deck):
         raise UsageError(f"{args.deck}: no such deck file")
@@ -77,12 +78,9 @@ def run(args) -> int:
         ws = resolve(args.deck, Loader(), root_for(args.deck, config, args.deck))
     except OSError as e:
         raise UsageError(f"{args.deck}: cannot be read ({e.strerror or e})")
-    errors = [f for f in ws.findings if f.severity is Severity.ERROR]
-    if errors:
-        for f in errors:
-            sys.stderr.write(f"{f.span.path}:{f.span.line}:{f.span.column}: {f.rule}: {f.message}\n")
-        sys.stderr.write("deckward: the deck has errors and cannot be run (see `deckward check`)\n")
-        return 2
+    refused = gate(ws, config, sys.stderr)
+    if refused is not None:
+        return refused
     cache_dir = os.path.join(args.cache_dir, "runs") if args.cache_dir else None
     cache = RunCache(cache_dir, enabled=not args.no_cache)
     from deckward.rules.runner.limits import check_before_running
@@ -105,4 +103,11 @@ def run(args) -> int:
                 f.write("\n")
         except OSError as e:
             raise UsageError(f"{args.json}: cannot be written ({e.strerror or e})")
+    if args.write_geometries:
+        from .geometry_output import write_geometries
+
+        written = write_geometries(report, args.write_geometries)
+        sys.stderr.write(f"deckward: wrote {len(written)} optimised geometr{'y' if len(written) == 1 else 'ies'} to "
+                         f"{args.write_geometries}\n" if written else "deckward: no state was optimised "
+                         "(optimize(...)): no geometry written\n")
     return 0 if report.ok else 1

@@ -83,10 +83,14 @@ def used_paths(ws: Workspace) -> list[str]:
     for pf in ws.files:
         for use in pf.deck.uses:
             add(os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value)))
+        for g in pf.deck.geometries:
+            if g.file is not None:  # an .xyz geometry, read or not (creating it changes the findings)
+                add(os.path.normpath(os.path.join(os.path.dirname(pf.path), g.file.value)))
     return out
 
 
-def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[list[Finding], list[str], Workspace]:
+def check_one(task: Task, loader: Loader, config: Config, probe: bool,
+              progress=None) -> tuple[list[Finding], list[str], Workspace]:
     """Findings of one deck, the files they depend on, and its workspace
     (raises DeckUnreadable)."""
     try:
@@ -97,7 +101,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool) -> tuple[
     if probe:
         from deckward.rules.probes import run_probes
 
-        extra = run_probes(ws, config)
+        extra = run_probes(ws, config, progress=progress)
     return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws), ws
 
 
@@ -110,6 +114,7 @@ class _Checker:
         self.cache = FindingsCache(cache_dir) if cache_dir else None
         self.config_print = config_fingerprint(config) if cache_dir else ""
         self.checked = 0
+        self.progress = None  # the probes' progress display (in the command's process only)
 
     def key(self, task: Task) -> Optional[str]:
         """The cache key of a deck (None without a cache, or when the deck
@@ -133,7 +138,7 @@ class _Checker:
         out: list[tuple[str, object]] = []
         for task, key in jobs:
             try:
-                findings, deps, ws = check_one(task, loader, self.config, self.probe)
+                findings, deps, ws = check_one(task, loader, self.config, self.probe, self.progress)
             except DeckUnreadable as e:
                 out.append(("unreadable", e.reason))
                 continue
@@ -191,7 +196,8 @@ def chunks(tasks: list, jobs: int) -> list[list]:
 
 
 def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None, loader: Optional[Loader] = None) -> tuple[list[Finding], CheckStats]:
+                cache_dir: Optional[str] = None, loader: Optional[Loader] = None,
+                progress=None) -> tuple[list[Finding], CheckStats]:
     """Findings of every task, concatenated in task order (raises
     DeckUnreadable for the first unreadable deck in that order).
 
@@ -202,6 +208,7 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
     if jobs < 1:
         jobs = default_jobs()
     local = _Checker(config, probe, cache_dir)
+    local.progress = progress
     results: list[Optional[tuple[str, object]]] = [None] * len(tasks)
     todo: list[tuple[int, Task, Optional[str]]] = []
     for i, task in enumerate(tasks):

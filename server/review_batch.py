@@ -198,6 +198,14 @@ def fix_diff(fix: Fix, texts: dict[str, Optional[str]], context: int = 2) -> str
     return "\n".join(out)
 
 
+def experiment_caution(finding: Finding) -> str:
+    """The caution that goes beside a comparison with experiment ('' when
+    the finding's evidence has none)."""
+    from deckward.rules.comparison import CAUTION
+
+    return CAUTION if any(k == "experimental_ev" for k, _ in finding.evidence) else ""
+
+
 def evidence_rows(finding: Finding) -> list[tuple[str, str]]:
     """Probe numbers as (label, value) for a table."""
     rows = []

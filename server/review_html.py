@@ -17,7 +17,8 @@ from importlib import resources
 from deckward import __version__
 from deckward.grammar.findings import Finding, Severity
 
-from .review_batch import (SEVERITIES, DeckEntry, Review, context_lines, evidence_rows, fix_diff, recorded_rows,
+from .review_batch import (SEVERITIES, DeckEntry, Review, context_lines, evidence_rows, experiment_caution, fix_diff,
+                           recorded_rows,
                            rule_info)
 
 LABELS = {Severity.ERROR: "Error", Severity.WARNING: "Warning", Severity.INFO: "Info"}
@@ -152,7 +153,8 @@ def evidence_table(f: Finding) -> str:
     rows = "".join(f'<tr><th scope="row">{e(k)}</th><td class="num">{e(v)}</td></tr>' for k, v in evidence_rows(f))
     return ('<div class="table-wrap"><table class="evidence"><caption>Probe numbers</caption>'
             '<thead><tr><th scope="col">Quantity</th><th scope="col" class="num">Value</th></tr></thead>'
-            f"<tbody>{rows}</tbody></table></div>")
+            f"<tbody>{rows}</tbody></table></div>"
+            + (f'<p class="small caution">{e(experiment_caution(f))}</p>' if experiment_caution(f) else ""))
 
 
 def finding_article(deck: DeckEntry, f: Finding, n: int, texts: dict, probed: bool) -> str:

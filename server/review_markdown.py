@@ -12,8 +12,8 @@ from deckward.grammar.findings import Severity
 from deckward.grammar.wording import counted
 
 from .format_markdown import code, md_text
-from .review_batch import (SEVERITIES, Review, batch_sentence, context_lines, evidence_rows, fix_diff, recorded_rows,
-                           rule_info)
+from .review_batch import (SEVERITIES, Review, batch_sentence, context_lines, evidence_rows, experiment_caution,
+                           fix_diff, recorded_rows, rule_info)
 
 LABELS = {Severity.ERROR: "Errors", Severity.WARNING: "Warnings", Severity.INFO: "Info"}
 
@@ -78,6 +78,8 @@ def render_review_markdown(review: Review) -> str:
                 out += ["| Probe number | Value |", "| --- | ---: |"]
                 out += [f"| {md_text(k)} | {md_text(v)} |" for k, v in evidence_rows(f)]
                 out.append("")
+                if experiment_caution(f):
+                    out += [md_text(experiment_caution(f)), ""]
         if d.suppressed:
             out.append("Suppressed on purpose: " + "; ".join(
                 f"line {f.span.line} {code(f.rule)} ({md_text(f.suppressed or '')})" for f in d.suppressed))

@@ -168,3 +168,65 @@ def test_basis_sensitivity_makes_up_the_missing_anion(tmp_path):
     assert f.message.endswith("(the deck has no anion: the probe computed one at the same geometry, "
                               "multiplicity 4, the lower in energy of the two next to the neutral's)")
     assert ws.root.deck.text[f.span.start:f.span.end] == "ea"
+
+
+LI_IE_DECK = ("geometry li { Li 0 0 0 }\nlevel lv { method = hf basis = cc-pvdz }\n"
+              "state neutral { geometry = li level = lv charge = 0 multiplicity = 2 }\n"
+              "state cation { geometry = li level = lv charge = 1 multiplicity = 1 }\n"
+              "derive ie = energy(cation) - energy(neutral) in ev\n"
+              "derive ie_koopmans = -orbital(neutral, homo) in ev\n")
+
+
+def _li_numbers(basis):
+    neutral, cation = _uhf("Li", basis, 0, 1), _uhf("Li", basis, 1, 0)
+    delta = (cation.e_tot - neutral.e_tot) * EV
+    orbital = -max(neutral.mo_energy[0][neutral.mo_occ[0] > 0].max(),
+                   neutral.mo_energy[1][neutral.mo_occ[1] > 0].max()) * EV
+    return delta, orbital
+
+
+def test_orbital_derive_uses_the_decks_own_cation_and_reports_once(tmp_path):
+    # Li: a deck with `state cation` and an orbital IE beside the delta-SCF
+    # IE.  The probes use the deck's cation (nothing made up) and report the
+    # two derives' shared numbers once, at the first derive, naming the other.
+    found, ws = _probe(tmp_path, LI_IE_DECK, select={"probe-koopmans-relaxation", "probe-basis-sensitivity"},
+                       probe_cfg={"threshold_ev": 0.0})
+    assert sorted(f.rule for f in found) == ["probe-basis-sensitivity", "probe-koopmans-relaxation"]
+    assert {ws.root.deck.text[f.span.start:f.span.end] for f in found} == {"ie"}
+    by_rule = {f.rule: f for f in found}
+    d0, o0 = _li_numbers("cc-pvdz")
+    d1, o1 = _li_numbers("aug-cc-pvdz")
+    sens = by_rule["probe-basis-sensitivity"]
+    assert sens.message == (f"delta-SCF IE at HF (also `ie_koopmans`): {d0:+.2f} eV with cc-pvdz, {d1:+.2f} eV with "
+                            f"aug-cc-pvdz: it moves by {abs(d1 - d0):.2f} eV (threshold 0 eV); orbital estimate "
+                            f"-e(HOMO): {o0:+.2f} eV -> {o1:+.2f} eV")
+    assert "the deck has no cation" not in sens.message
+    koop = by_rule["probe-koopmans-relaxation"]
+    assert koop.message == (f"IE at HF/cc-pvdz (also `ie_koopmans`): orbital energy -e(HOMO) {o0:.2f} eV, "
+                            f"delta-SCF {d0:.2f} eV: relaxation (orbital minus delta-SCF) {o0 - d0:+.2f} eV")
+    evidence = dict(koop.evidence)
+    assert evidence["relaxation_ev"] == pytest.approx(o0 - d0, abs=1e-5)
+    assert evidence["cation_constructed"] is False
+
+
+def test_koopmans_relaxation_has_one_sign_in_message_and_report_table(tmp_path):
+    # The relaxation printed in the message and in the review's evidence
+    # table is the same signed number (orbital minus delta-SCF); for the F
+    # atom at HF it is positive (Koopmans' IE too large without relaxation:
+    # Szabo & Ostlund section 3.3, from memory) and about an eV or more.
+    from deckward.server.review_batch import evidence_rows
+
+    deck = ("geometry f { F 0 0 0 }\nlevel lv { method = hf basis = cc-pvdz }\n"
+            "state neutral { geometry = f level = lv charge = 0 multiplicity = 2 }\n"
+            "state cation { geometry = f level = lv charge = 1 multiplicity = 3 }\n"
+            "derive ie = energy(cation) - energy(neutral) in ev\n")
+    found, _ = _probe(tmp_path, deck, select={"probe-koopmans-relaxation"})
+    (f,) = found
+    neutral, cation = _uhf("F", "cc-pvdz", 0, 1), _uhf("F", "cc-pvdz", 1, 2)
+    delta = (cation.e_tot - neutral.e_tot) * EV
+    orbital = -max(neutral.mo_energy[s][neutral.mo_occ[s] > 0].max() for s in (0, 1)) * EV
+    assert orbital - delta > 0.5
+    in_message = f.message.rsplit("relaxation (orbital minus delta-SCF) ", 1)[1].removesuffix(" eV")
+    in_table = dict(evidence_rows(f))["relaxation (eV)"]
+    assert in_message == f"{orbital - delta:+.2f}"
+    assert in_table == f"{orbital - delta:.3f}"

@@ -169,7 +169,7 @@ def test_probe_numbers_and_plot(tmp_path):
     caption = figure.find(X + "figcaption")
     assert svg.get("aria-labelledby") == caption.get("id")
     assert text_of(caption) == ("ea: EA, delta-SCF: -0.54 eV with 6-31g*, +0.47 eV with 6-31+g*; "
-                                "ea: EA, orbital estimate: -1.50 eV with 6-31g*, -0.47 eV with 6-31+g*.")
+                                "ea: EA, -e(LUMO): -1.50 eV with 6-31g*, -0.47 eV with 6-31+g*.")
     svg_text = " ".join(text_of(t) for t in svg.iter("{http://www.w3.org/2000/svg}text"))
     assert "ea: EA, delta-SCF" in svg_text and "augmented counterpart" in svg_text
     table = by_class(tree, "table", "evidence")[0]

@@ -25,5 +25,7 @@ INFO = RuleInfo(
 def check(ctx: Context):
     for pf in ctx.workspace.files:
         for geometry in pf.deck.geometries:
+            if geometry.file is not None and geometry.file_path is None:
+                continue  # the .xyz file could not be read: reported where `file` names it
             if not geometry.atoms:
                 yield ctx.finding(geometry.name.span, f"geometry `{geometry.name.value}` has no atoms")

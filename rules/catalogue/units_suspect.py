@@ -73,6 +73,8 @@ def check(ctx: Context):
             if verdict is None:
                 continue
             declared = f"units = {verdict.declared}" if geometry.units else "no units line (angstrom by default)"
+            if geometry.file_path is not None:
+                declared = f"atoms from `{geometry.file.value}` (an .xyz file is in angstrom)"
             if verdict.declared_range[1] < geo.SHORTEST_BOND_RATIO:
                 as_written = (
                     f"every atom is closer to its nearest neighbour than any bond "
@@ -86,12 +88,13 @@ def check(ctx: Context):
                     f"{geo.BOND_TOLERANCE})"
                 )
             span = geometry.units.span if geometry.units else geometry.name.span
+            fixes = (fix(f"Set units = {verdict.likely}", _units_edit(pf.index, geometry, verdict.likely), risky=True),)
+            if geometry.file_path is not None:  # the numbers are in the .xyz file: no units line to set
+                span, fixes = geometry.atoms[0].span, ()
             yield ctx.finding(
                 span,
                 f"geometry `{geometry.name.value}` with {declared}: {as_written}; read in {verdict.likely} "
                 f"the same numbers give ordinary bond lengths ({_range(*verdict.likely_range)} times the sum): "
                 f"the coordinates look like {verdict.likely} values",
-                fixes=(
-                    fix(f"Set units = {verdict.likely}", _units_edit(pf.index, geometry, verdict.likely), risky=True),
-                ),
+                fixes=fixes,
             )

@@ -17,15 +17,17 @@ PROBES = (basis_sensitivity, unbound_anion, spin_contamination, koopmans_relaxat
 PROBE_RULES = tuple(p.INFO for p in PROBES)
 
 
-def run_probes(ws, config=None, cache=None, select: Optional[set] = None) -> list[Finding]:
+def run_probes(ws, config=None, cache=None, select: Optional[set] = None, progress=None) -> list[Finding]:
     """Findings of every probe (or those in ``select``) on one workspace.
     Decks with errors are not probed (their states may be incomplete); a
-    probe that fails reports it as information instead of stopping the others."""
+    probe that fails reports it as information instead of stopping the others.
+    ``progress``: a runner ``Progress`` that shows each calculation (the
+    display of ``deckward run``)."""
     from .common import ProbeContext
 
     if any(f.severity is Severity.ERROR for f in ws.findings):
         return []
-    ctx = ProbeContext(ws, config, cache)
+    ctx = ProbeContext(ws, config, cache, progress)
     out: list[Finding] = []
     for module in PROBES:
         info = module.INFO

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from deckward.grammar.findings import RuleInfo, Severity
 
-from .common import ProbeContext, ProbeSkipped, augmented_plan, finding, signed, skipped
+from .common import ProbeContext, ProbeSkipped, augmented_plan, experiment_evidence, finding, signed, skipped
 
 INFO = RuleInfo(
     id="probe-basis-sensitivity",
@@ -69,7 +69,7 @@ def probe(ctx: ProbeContext):
         orbital = "-e(LUMO)" if q == "EA" else "-e(HOMO)"
         verdict = ("the basis decides the sign" if (d0 < 0) != (d1 < 0)
                    else f"it moves by {abs(shift):.2f} eV (threshold {threshold:g} eV)")
-        message = (f"delta-SCF {q} at HF: {signed(d0)} eV with {b0}, {signed(d1)} eV with {b1}: {verdict}; "
+        message = (f"delta-SCF {q} at HF{pair.also_note()}: {signed(d0)} eV with {b0}, {signed(d1)} eV with {b1}: {verdict}; "
                    f"orbital estimate {orbital}: {signed(o0)} eV -> {signed(o1)} eV")
         if pair.constructed:
             ion = "anion" if q == "EA" else "cation"
@@ -86,4 +86,5 @@ def probe(ctx: ProbeContext):
             "orbital_estimate_augmented_ev": round(o1, 6),
             "shift_ev": round(shift, 6),
             "threshold_ev": threshold,
+            **experiment_evidence(ctx, pair.derive, d0),
         })

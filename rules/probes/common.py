@@ -10,7 +10,8 @@ earlier probe has done, and each calculation stops at ``probe.time_limit_s``.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+import os
+from dataclasses import dataclass, replace
 from typing import Optional
 
 from deckward.grammar import model as m
@@ -106,6 +107,13 @@ class IonPair:
     low: StatePlan
     high: StatePlan
     constructed: Optional[str]  # 'low' or 'high' when the probe made that state up
+    also: tuple[str, ...] = ()  # other derives of the same quantity on the same two states
+
+    def also_note(self) -> str:
+        """`` (also `ea_eig`)`` when other derives share these numbers."""
+        if not self.also:
+            return ""
+        return " (also " + ", ".join(f"`{n}`" for n in self.also) + ")"
 
 
 def _electrons(plan: StatePlan) -> int:
@@ -117,10 +125,12 @@ def _electrons(plan: StatePlan) -> int:
 class ProbeContext:
     """Shared state of one ``run_probes`` call."""
 
-    def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None) -> None:
+    def __init__(self, ws: Workspace, config: Optional[Config] = None, cache: Optional[RunCache] = None,
+                 progress=None) -> None:
         from ..runner.cache import RunCache
 
         self.ws = ws
+        self.progress = progress  # a runner Progress shared by the command (None: no display)
         self.config = config
         self.settings = ProbeSettings.from_config(config)
         self.cache = cache or RunCache()
@@ -179,7 +189,10 @@ class ProbeContext:
             from ..runner.executors import probe_executor
 
             options = RunOptions(jobs=1, time_limit_s=self.settings.time_limit_s, executor=probe_executor())
-            self._results[key] = execute([plan], self.cache, options)[plan.name]
+            shown = plan.with_changes(name=f"{os.path.basename(self.ws.path)}: HF/{plan.basis_label} {plan.name}")
+            if self.progress is not None:
+                self.progress.grow()
+            self._results[key] = execute([shown], self.cache, options, self.progress)[shown.name]
         result = self._results[key]
         if result["status"] != "ok":
             raise ProbeSkipped(f"HF/{plan.basis_label} for `{plan.name}` {result['status']}: {result['reason']}")
@@ -188,10 +201,25 @@ class ProbeContext:
     # -- derives -----------------------------------------------------------------
     def ion_pairs(self, quantities=("electron_affinity", "ionization_energy"),
                   construct: bool = False) -> list[IonPair]:
-        """EA/IE derives as pairs of states.  An energy difference gives both
-        states; with ``construct``, an orbital-only derive gets its missing
-        partner made up (the cation of an IE, the anion of an EA)."""
-        pairs = []
+        """EA/IE derives as pairs of states, one pair per distinct pair of
+        calculations (further derives on the same two states are named in
+        ``also``, so a probe reports each number once).  An energy
+        difference gives both states; with ``construct``, an orbital-only
+        derive takes its partner (the cation of an IE, the anion of an EA)
+        from the deck when a state on the same geometry has the right
+        electron count, and makes one up only when none does."""
+        pairs: list[IonPair] = []
+        seen: dict[tuple, int] = {}
+
+        def add(pair: IonPair) -> None:
+            key = (pair.quantity, self.cache.key(pair.low), self.cache.key(pair.high))
+            if key in seen:
+                first = pairs[seen[key]]
+                pairs[seen[key]] = replace(first, also=first.also + (pair.derive.name.value,))
+                return
+            seen[key] = len(pairs)
+            pairs.append(pair)
+
         for d in self.ws.derives:
             q = self.ws.quantity_of(d)
             if q not in quantities:
@@ -202,7 +230,7 @@ class ProbeContext:
                 if a is None or b is None:
                     continue
                 if _electrons(a) + 1 == _electrons(b):
-                    pairs.append(IonPair(d, q, a, b, None))
+                    add(IonPair(d, q, a, b, None))
                 continue
             if not construct:
                 continue
@@ -213,14 +241,33 @@ class ProbeContext:
             base = self.plan(node.state.value)
             if base is None:
                 continue
-            partner = self.lowest(partner_plans(base, -1 if q == "ionization_energy" else +1))
+            extra = -1 if q == "ionization_energy" else +1
+            partner = self.deck_partner(node.state.value, extra)
+            made_up = partner is None
+            if made_up:
+                partner = self.lowest(partner_plans(base, extra))
             if partner is None:
                 continue
             if q == "ionization_energy":
-                pairs.append(IonPair(d, q, partner, base, "low"))
+                add(IonPair(d, q, partner, base, "low" if made_up else None))
             else:
-                pairs.append(IonPair(d, q, base, partner, "high"))
+                add(IonPair(d, q, base, partner, "high" if made_up else None))
         return pairs
+
+    def deck_partner(self, name: str, extra_electrons: int) -> Optional[StatePlan]:
+        """The HF plan of the first deck state on the same atoms as state
+        ``name`` with ``extra_electrons`` more electrons, or None."""
+        base = self.plan(name)
+        if base is None:
+            return None
+        for other in self.ws.states:
+            if other == name:
+                continue
+            plan = self.plan(other)
+            if plan is not None and plan.atoms == base.atoms and plan.basis == base.basis \
+                    and _electrons(plan) == _electrons(base) + extra_electrons:
+                return plan
+        return None
 
     def lowest(self, plans: list[StatePlan]) -> Optional[StatePlan]:
         """The plan with the lowest HF energy (None when none could be computed)."""
@@ -244,6 +291,19 @@ class ProbeContext:
         else:
             orb = -r_high["orbitals"]["any"]["occupied"][0]
         return delta, units.from_hartree(orb, "ev")
+
+
+def experiment_evidence(ctx: "ProbeContext", derive: m.Derive, computed_ev: float) -> dict:
+    """The measured value of a derive (deck's reference clause or the
+    reference table) for a probe's evidence, with the probe value's
+    deviation; empty when none is known."""
+    from ..comparison import measured_for
+
+    measured = measured_for(ctx.ws, derive)
+    if measured is None:
+        return {}
+    return {"experimental_ev": round(measured.value_ev, 6), "experimental_source": measured.source,
+            "deviation_from_experiment_ev": round(computed_ev - measured.value_ev, 6)}
 
 
 def finding(info: RuleInfo, span: Span, message: str, evidence: dict, severity: Optional[Severity] = None) -> Finding:

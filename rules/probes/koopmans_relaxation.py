@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from deckward.grammar.findings import RuleInfo, Severity
 
-from .common import ProbeContext, ProbeSkipped, finding, signed, skipped
+from .common import ProbeContext, ProbeSkipped, experiment_evidence, finding, signed, skipped
 
 INFO = RuleInfo(
     id="probe-koopmans-relaxation",
@@ -47,15 +47,16 @@ def probe(ctx: ProbeContext):
         except ProbeSkipped as e:
             yield skipped(INFO, span, str(e))
             continue
-        relaxation = orbital - delta
+        relaxation = orbital - delta  # the same number, with the same sign, in the message and the evidence
         made_up = (f" (cation made up by the probe: multiplicity {pair.low.spin + 1}, the lower in energy of the "
                    "two next to the neutral's)" if pair.constructed else "")
         yield finding(INFO, span, (
-            f"IE at HF/{pair.high.basis_label}: orbital energy -e(HOMO) {orbital:.2f} eV, delta-SCF "
-            f"{delta:.2f} eV{made_up}: relaxation {signed(-relaxation)} eV"), {
+            f"IE at HF/{pair.high.basis_label}{pair.also_note()}: orbital energy -e(HOMO) {orbital:.2f} eV, "
+            f"delta-SCF {delta:.2f} eV{made_up}: relaxation (orbital minus delta-SCF) {signed(relaxation)} eV"), {
             "basis": pair.high.basis_label,
             "orbital_ie_ev": round(orbital, 6),
             "delta_scf_ie_ev": round(delta, 6),
             "relaxation_ev": round(relaxation, 6),
             "cation_constructed": bool(pair.constructed),
+            **experiment_evidence(ctx, pair.derive, delta),
         })

@@ -118,6 +118,9 @@ def probe(ctx: ProbeContext):
                           diffuse_basis=_diffuse_basis(pair.high))
         if message is None:
             continue
+        if pair.also:
+            message = message.replace(f"at HF/{pair.high.basis_label}", f"at HF/{pair.high.basis_label}"
+                                      f"{pair.also_note()}", 1)
         yield finding(INFO, span, message, {
             "basis": pair.high.basis_label,
             "anion_homo_ev": round(homo, 6),

@@ -32,6 +32,7 @@ class DerivedValue:
     value_hartree: Optional[float]
     states: list[str] = field(default_factory=list)
     reason: Optional[str] = None
+    experiment: Optional[dict] = None  # the measured value beside it (rules/comparison.py)
 
     @property
     def available(self) -> bool:
@@ -47,6 +48,7 @@ class DerivedValue:
             "available": self.available,
             "states": self.states,
             "reason": self.reason,
+            "experiment": self.experiment,
         }
 
 

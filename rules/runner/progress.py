@@ -30,7 +30,12 @@ class Progress:
         self._stop = threading.Event()
         self._thread: Optional[threading.Thread] = None
 
+    def grow(self, n: int = 1) -> None:
+        """Count ``n`` more calculations (probes learn what they need as they go)."""
+        self.total += n
+
     def __enter__(self) -> "Progress":
+        self._stop.clear()
         if self.live:
             self._thread = threading.Thread(target=self._tick, daemon=True)
             self._thread.start()

@@ -95,10 +95,15 @@ def format_report(report: RunReport) -> str:
     if notes:
         out += [""] + [f"  {n}" for n in notes]
     if report.derived:
+        from ..comparison import comparison_lines
+
         drows = []
         for d in report.derived:
+            e = d.experiment or {}
             drows.append([d.name, d.quantity or "", _fmt(d.value, 6), unit_symbol(d.unit) if d.available else "",
+                          _fmt(e.get("value_ev"), 3) if e else "", _fmt(e.get("deviation_ev"), 3) if e else "",
                           "" if d.available else f"not available: {d.reason}"])
-        out += ["", _table(["derived", "quantity", "value", "unit", ""], drows)]
+        out += ["", _table(["derived", "quantity", "value", "unit", "experiment [eV]", "deviation [eV]", ""], drows)]
+        out += [f"  {line}" for line in comparison_lines(report.derived)]
     out += ["", "Caution: " + CAUTION, ""]
     return "\n".join(out)

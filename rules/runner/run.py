@@ -7,6 +7,7 @@ from typing import Optional
 from deckward import __version__
 from deckward.grammar.resolve import Workspace
 
+from ..comparison import attach_comparisons
 from .cache import RunCache, pyscf_version
 from .derive_eval import evaluate
 from .mapping import MappingError, needed_states, plan_state
@@ -16,10 +17,12 @@ from .results import RunReport
 
 
 def deck_hash(ws: Workspace) -> str:
-    """SHA-256 over the texts of the deck and every file it uses."""
+    """SHA-256 over the texts of the deck and every file it uses (.xyz geometries included)."""
     h = hashlib.sha256()
     for f in ws.files:
         h.update(f.digest.encode("ascii"))
+    for _, digest in ws.geometry_files:
+        h.update(digest.encode("ascii"))
     return h.hexdigest()
 
 
@@ -73,6 +76,7 @@ def _run(ws, cache, options, all_states, progress_stream, show_progress, report:
     order = [n for n in needed_states(ws, all_states)]
     report.states = [results[n] for n in order if n in results]
     report.derived = [evaluate(d, results, ws.quantity_of(d)) for d in ws.derives]
+    attach_comparisons(ws, report.derived)
 
 
 def _unmapped(ws: Workspace, name: str, error: MappingError) -> dict:

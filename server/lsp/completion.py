@@ -23,6 +23,8 @@ from deckward.grammar.build import KEYS
 from deckward.grammar.resolve import Workspace
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
+from .geometry_files import file_items
+
 if TYPE_CHECKING:
     from .server import DeckServer
     from .workspace import Analysis
@@ -234,6 +236,8 @@ def items_for(ctx: Context, ws: Optional[Workspace]) -> list[t.CompletionItem]:
             return names
         if key == "level":
             return [_item(n, K.Reference, "level") for n in _names(ws, "level")]
+        if key == "file":
+            return file_items(ws)
         return []
     if what == "map_key":
         syms = sorted(_elements_in_use(ws, ctx)) if ws is not None else []

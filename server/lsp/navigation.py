@@ -20,6 +20,7 @@ from deckward.grammar import model as m
 from deckward.grammar.resolve import Definition, Workspace, resolve
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
+from .geometry_files import file_location
 from .positions import PositionMap
 from .workspace import path_to_uri, uri_to_path
 
@@ -198,6 +199,9 @@ def register(server: "DeckServer") -> None:
     @server.feature(t.TEXT_DOCUMENT_DEFINITION)
     async def definition(ls: "DeckServer", params: t.DefinitionParams):
         analysis, hit = await locate(ls, params.text_document.uri, params.position)
+        if analysis is not None and (xyz := file_location(analysis.workspace, analysis.path,
+                                                          analysis.positions.offset(params.position))):
+            return xyz
         if not hit or hit[1] is None:
             return None
         d = hit[1]
