@@ -33,7 +33,7 @@ SMALL = """geometry cn {
 }
 geometry f { F 0 0 0 }
 geometry h { H 0 0 0 }
-level hf_small { method = hf basis = 6-31g reference = unrestricted }
+level hf_small { method = hf basis = 6-31g reference = unrestricted }  # allow: anion-lacks-diffuse -- a small basis keeps the cluster tests short
 state radical { geometry = cn level = hf_small charge = 0 multiplicity = 2 }
 state anion { geometry = cn level = hf_small charge = -1 multiplicity = 1 reference = restricted }
 state fluorine { geometry = f level = hf_small charge = 0 multiplicity = 2 }
