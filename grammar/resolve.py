@@ -15,8 +15,9 @@ from dataclasses import dataclass, field
 from typing import Callable, Optional
 
 from . import model as m
-from .build import build_deck, closest_names, did_you_mean
-from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
+from .build import build_deck
+from .findings import Finding, Related, Severity, Span
+from .suggest import replacement_fixes, suggest
 from .text_index import LineIndex
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
@@ -314,11 +315,11 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
             msg = f"`{name.value}` is a {d.kind}, not a {kind}"
             related = (Related(d.name.span, f"`{name.value}` is defined here"),)
         else:
-            msg = f"no {kind} is named `{name.value}`" + did_you_mean(name.value, same_kind)
+            close = suggest(name.value, same_kind)
+            msg = f"no {kind} is named `{name.value}`" + close.hint()
             related = ()
-            close = closest_names(name.value, same_kind)
-            if close:
-                fixes = (Fix(f"Use the {kind} `{close[0]}`", (TextEdit(name.span, close[0]),), Applicability.RISKY),)
+            # another defined name: the same calculation, spelt right (safe when clearly the one meant)
+            fixes = replacement_fixes(name.span, close, title=f"Use the {kind} `{{}}`")
         findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related, fixes=fixes))
         return None
 

@@ -149,14 +149,14 @@ def all_names() -> list[str]:
 
 def closest(word: str, n: int = 3) -> list[str]:
     """Method names most like ``word`` (did-you-mean), best first."""
-    import difflib  # only a did-you-mean pays for it
+    from deckward.grammar.suggest import closest as nearest
 
     key = _norm(word)
     if not key or n <= 0:
         return []
     table = _by_word()
     out: list[str] = []
-    for hit in difflib.get_close_matches(key, list(table), n=4 * n, cutoff=0.6):
+    for hit in nearest(key, table, n=4 * n, key=_norm):
         name = table[hit].name
         if name not in out:
             out.append(name)

@@ -135,9 +135,11 @@ async def test_apply_all_safe_fixes_source_action(client: LanguageClient):
         range=t.Range(start=t.Position(line=0, character=0), end=t.Position(line=0, character=0)),
         context=t.CodeActionContext(diagnostics=[], only=[t.CodeActionKind.SourceFixAll])))
     (action,) = actions
-    assert action.title == "Apply all safe fixes in this file (2 fixes)"
+    # the two references, and `electron_afinity` (one letter from `electron_affinity`)
+    assert action.title == "Apply all safe fixes in this file (3 fixes)"
     fixed = apply_text_edits(text, action.edit.changes[uri])
     assert fixed.count("reference = unrestricted") == 2 and "= restricted\n" not in fixed
+    assert "goal = electron_affinity }" in fixed
     change_document(client, uri, fixed, 2)
     after = await wait_for_diagnostics(client, uri, 2)
     assert "restricted-open-shell" not in [d.code for d in after]
