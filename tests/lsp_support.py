@@ -104,3 +104,29 @@ def brief(diagnostics) -> list[tuple]:
     """(code, start line, start char, end line, end char, message) sorted."""
     return sorted((d.code, d.range.start.line, d.range.start.character, d.range.end.line, d.range.end.character,
                    d.message) for d in diagnostics)
+
+
+class session:
+    """``async with session(root, *args) as client``: a server started with
+    ``deckward serve ARGS`` for one test, initialised on ``root`` with the
+    capabilities of ``profile``, shut down afterwards."""
+
+    def __init__(self, root, *args: str, profile: str = "neovim@v0.7.0"):
+        self.root, self.args, self.profile = root, args, profile
+
+    async def __aenter__(self):
+        from pytest_lsp import ClientServerConfig, client_capabilities
+
+        self.client = await ClientServerConfig(server_command=SERVER_COMMAND + list(self.args)).start()
+        self.client.root = self.root
+        record_diagnostics(self.client)
+        result = await self.client.initialize_session(t.InitializeParams(
+            capabilities=client_capabilities(self.profile), root_uri=uri_of(self.root, "")))
+        self.client.server_capabilities = result.capabilities
+        return self.client
+
+    async def __aexit__(self, *exc):
+        try:
+            await self.client.shutdown_session()
+        finally:
+            await self.client.stop()

@@ -94,7 +94,7 @@ async def test_diagnostics_are_exact_with_utf16_columns(client: LanguageClient):
     ros = next(d for d in diags if d.code == "restricted-open-shell")
     assert ros.severity == t.DiagnosticSeverity.Error
     assert ros.source == "deckward"
-    assert ros.code_description.href.endswith("docs/rules.md#restricted-open-shell")
+    assert ros.code_description.href.endswith(".md#restricted-open-shell")
 
 
 async def test_related_spans_become_related_information(client: LanguageClient):

@@ -6,6 +6,10 @@ still has the version that was checked, so stale findings never reach the
 editor and fast typing never queues work.  Opening and saving check at once.
 Pulling (``textDocument/diagnostic``) answers from the same analysis, with a
 result id that changes whenever the diagnostics do.
+
+A broken ``deckward.yaml`` is never silent: its problems are published as
+diagnostics on the file itself (pushed, or pulled when it is open) and,
+each time they change, shown once with ``window/showMessage``.
 """
 from __future__ import annotations
 
@@ -17,7 +21,9 @@ from typing import TYPE_CHECKING
 from lsprotocol import types as t
 
 from deckward.grammar.findings import Finding, Severity
-from deckward.server.rule_docs import rule_url  # the one place that knows where docs/rules.md is published
+from deckward.server.rule_docs import rule_url  # the one place that knows where the rule docs are
+
+from .workspace import path_to_uri, uri_to_path
 
 if TYPE_CHECKING:
     from .server import DeckServer
@@ -35,8 +41,6 @@ _UNNECESSARY = {"unused-suppression"}
 
 
 def to_diagnostic(finding: Finding, analysis: "Analysis") -> t.Diagnostic:
-    from .workspace import path_to_uri
-
     pos = analysis.positions
     related = []
     for r in finding.related:
@@ -74,12 +78,48 @@ def result_id(diagnostics: list[t.Diagnostic], server: "DeckServer") -> str:
     return hashlib.sha1(payload.encode()).hexdigest()[:16]
 
 
+def config_diagnostics(config, encoding: str) -> list[t.Diagnostic]:
+    """The problems of a configuration file as diagnostics on that file."""
+    from .positions import PositionMap
+
+    try:
+        with open(config.path, "rb") as f:
+            text = f.read().decode("utf-8", errors="replace")
+    except OSError:
+        text = ""
+    pos = PositionMap(text, encoding)
+    return [t.Diagnostic(range=pos.range(min(f.span.start, len(text)), min(f.span.end, len(text))),
+                         message=f.message, severity=_SEVERITY[f.severity], code=f.rule, source=SOURCE)
+            for f in config.findings]
+
+
 class Publisher:
     """Schedules checks of open documents and publishes their results."""
 
     def __init__(self, server: "DeckServer") -> None:
         self.server = server
         self.pending: dict[str, asyncio.Task] = {}
+        self.config_states: dict[str, tuple] = {}  # config path -> its problems as last reported
+
+    def report_config(self, config, force: bool = False) -> None:
+        """Publish a configuration's problems on the file and tell the user
+        once per change."""
+        if not config.path:
+            return
+        state = tuple((f.span.start, f.span.end, f.message) for f in config.findings)
+        if not force and self.config_states.get(config.path) == state:
+            return
+        changed = self.config_states.get(config.path) != state
+        self.config_states[config.path] = state
+        if self.server.push:
+            self.server.text_document_publish_diagnostics(t.PublishDiagnosticsParams(
+                uri=path_to_uri(config.path), diagnostics=config_diagnostics(config, self.server.store.encoding)))
+        if config.findings and changed:
+            first = config.findings[0]
+            n = len(config.findings)
+            self.server.window_show_message(t.ShowMessageParams(type=t.MessageType.Warning, message=(
+                f"deckward: {config.path} has {n} problem{'s' * (n != 1)} and the settings it could not read "
+                f"are not applied; line {first.span.line}: {first.message}")))
 
     def schedule(self, uri: str, delay: float = DEBOUNCE_S, dependents: bool = False) -> None:
         """Check ``uri`` after ``delay`` unless another change comes first."""
@@ -92,12 +132,16 @@ class Publisher:
         try:
             if delay:
                 await asyncio.sleep(delay)
+            if self.server.store.is_config(uri):
+                self.report_config(self.server.store.config_for(uri_to_path(uri)), force=True)
+                return
             analysis = await self.server.analysis(uri)
             if analysis is None:
                 return
             if self.server.push and self.server.is_current(uri, analysis):
                 self.server.text_document_publish_diagnostics(t.PublishDiagnosticsParams(
                     uri=uri, version=analysis.version, diagnostics=diagnostics_of(analysis, self.server)))
+            self.report_config(analysis.config)
             if dependents:
                 for other in self.server.store.dependents(analysis.path):
                     if other != uri and self.server.is_open(other):
@@ -153,8 +197,6 @@ def register(server: "DeckServer") -> None:
         ls.changed()
         ls.publisher.clear(uri)
         # Decks that used the closed buffer now read the file from disk.
-        from .workspace import uri_to_path
-
         for other in ls.store.dependents(uri_to_path(uri)):
             if ls.is_open(other):
                 ls.publisher.schedule(other, 0.0)
@@ -164,7 +206,11 @@ def register(server: "DeckServer") -> None:
         t.DiagnosticOptions(identifier=SOURCE, inter_file_dependencies=True, workspace_diagnostics=False),
     )
     async def pull(ls: "DeckServer", params: t.DocumentDiagnosticParams):
-        analysis = await ls.analysis(params.text_document.uri)
+        uri = params.text_document.uri
+        if ls.store.is_config(uri):
+            items = config_diagnostics(ls.store.config_for(uri_to_path(uri)), ls.store.encoding)
+            return t.FullDocumentDiagnosticReport(items=items, result_id=result_id(items, ls))
+        analysis = await ls.analysis(uri)
         items = diagnostics_of(analysis, ls) if analysis is not None else []
         rid = result_id(items, ls)
         if params.previous_result_id == rid:

@@ -53,7 +53,7 @@ class DeckServer(LanguageServer):
         """The analysis of the open document ``uri`` at its current text
         (None when it is not open)."""
         doc = self.workspace.text_documents.get(uri)
-        if doc is None:
+        if doc is None or self.store.is_config(uri):
             return None
         cached = self.store.analyses.get(uri)
         if cached is not None and cached.generation == self.generation and self.is_current(uri, cached):
@@ -75,8 +75,7 @@ class DeckServer(LanguageServer):
         self.store.forget_configs()
         self.changed()
         for uri in list(self.workspace.text_documents):
-            if not self.store.is_config(uri_to_path(uri)):
-                self.publisher.schedule(uri, 0.0)
+            self.publisher.schedule(uri, 0.0)  # a deck is re-checked, an open deckward.yaml re-reported
         self.refresh_pull_diagnostics()
 
     def refresh_pull_diagnostics(self) -> None:
@@ -153,8 +152,8 @@ def build_server() -> DeckServer:
 
 
 def start(tcp: Optional[tuple[str, int]] = None) -> None:
-    """Run the server on stdio (default) or on a TCP address."""
-    logging.basicConfig(stream=sys.stderr, level=logging.WARNING, format="deckward-lsp: %(levelname)s: %(message)s")
+    """Run the server on stdio (default) or on a TCP address (logging is
+    set up by the caller, ``deckward serve``)."""
     server = build_server()
     if tcp is not None:
         server.start_tcp(*tcp)
