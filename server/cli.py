@@ -49,6 +49,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv=None) -> int:
+    argv = sys.argv[1:] if argv is None else list(argv)
+    if argv[:1] == ["serve"]:  # the language server starts without loading the other commands
+        from .cmd_serve import main as serve
+
+        return serve(argv[1:])
     from .checking import UsageError
 
     parser = build_parser()

@@ -58,8 +58,11 @@ class _Html(HTMLParser):
 
 
 def render(markdown: str) -> list[tuple[str, str, dict]]:
+    md = MarkdownIt("commonmark").enable("table")
+    # markdown-it refuses file: links by its own safety policy (not CommonMark's); editors open them.
+    md.validateLink = lambda url: True
     parser = _Html()
-    parser.feed(MarkdownIt("commonmark").enable("table").render(markdown))
+    parser.feed(md.render(markdown))
     return parser.elements
 
 

@@ -12,7 +12,6 @@ import logging
 import sys
 from typing import Optional
 
-LEVELS = ("debug", "info", "warning", "error")
 FORMAT = "%(asctime)s deckward-lsp %(levelname)s %(name)s: %(message)s"
 
 
@@ -21,6 +20,8 @@ class OneLineRefusals(logging.Filter):
     becomes one line without a traceback."""
 
     def filter(self, record: logging.LogRecord) -> bool:
+        if isinstance(record.msg, str) and record.msg.startswith("Unable to deserialize message"):
+            return False  # transport.py answers the request and logs one line
         exc = record.exc_info[1] if record.exc_info else None
         if exc is not None:
             from pygls.exceptions import JsonRpcException

@@ -16,6 +16,7 @@ from typing import Optional
 
 from lsprotocol import types as t
 from pygls.lsp.server import LanguageServer
+from pygls.protocol import LanguageServerProtocol
 
 from deckward import __version__
 
@@ -25,11 +26,32 @@ from .workspace import Analysis, DeckWorkspace, uri_to_path
 NAME = "deckward"
 
 
+class DeckProtocol(LanguageServerProtocol):
+    """pygls' protocol, without its memory growth.
+
+    pygls 2.1.1 keeps the future of every handler it runs under a fresh id
+    in ``_request_futures`` and removes only those of requests it answers,
+    so each notification (every keystroke's ``didChange``) stays in memory
+    with its parameters.  A finished future is forgotten here.  (Worth
+    reporting upstream: ``_execute_handler`` should pop it itself.)"""
+
+    def _execute_handler(self, msg_id, handler, args=None, kwargs=None, callback=None):
+        super()._execute_handler(msg_id, handler, args=args, kwargs=kwargs, callback=callback)
+        future = self._request_futures.get(msg_id)
+        if future is not None:
+            def forget(done, msg_id=msg_id):
+                if self._request_futures.get(msg_id) is done:
+                    del self._request_futures[msg_id]
+
+            future.add_done_callback(forget)
+
+
 class DeckServer(LanguageServer):
     """A language server whose documents are decks."""
 
     def __init__(self) -> None:
-        super().__init__(NAME, __version__, text_document_sync_kind=t.TextDocumentSyncKind.Incremental)
+        super().__init__(NAME, __version__, text_document_sync_kind=t.TextDocumentSyncKind.Incremental,
+                         protocol_cls=DeckProtocol)
         from .diagnostics import Publisher
 
         self.store = DeckWorkspace()
@@ -158,6 +180,70 @@ def start(tcp: Optional[tuple[str, int]] = None) -> None:
     if tcp is not None:
         server.start_tcp(*tcp)
         return
+    from .transport import MessageReader
+
     protocol_out = sys.stdout.buffer
     sys.stdout = sys.stderr  # a stray print must not corrupt the protocol stream
-    server.start_io(sys.stdin.buffer, protocol_out)
+    serve_stdio(server, MessageReader(sys.stdin.buffer), protocol_out)
+
+
+def serve_stdio(server: DeckServer, reader, out, first: Optional[bytes] = None, answered=None) -> None:
+    """The message loop on stdio, with deckward's reader (``transport.py``).
+
+    ``first``: a message read before the server existed; ``answered``:
+    (id, result) when it was an ``initialize`` already answered
+    (``fast_start.py``): pygls handles it too, for its state, and its own
+    answer is only compared with the one sent."""
+    import threading
+
+    from pygls.io_ import StdoutWriter
+
+    from .transport import dispatch
+
+    server._stop_event = stop = threading.Event()
+    server.protocol.set_writer(StdoutWriter(out))
+    reading = ThreadPoolExecutor(max_workers=1, thread_name_prefix="deckward-stdin")
+
+    async def loop() -> None:
+        if first is not None:
+            if answered is not None:
+                _replay_initialize(server, first, *answered)
+            else:
+                dispatch(server.protocol, first)
+        running = asyncio.get_running_loop()
+        while not stop.is_set():
+            body = await running.run_in_executor(reading, reader.read)
+            if body is None:
+                break
+            dispatch(server.protocol, body)
+
+    try:
+        asyncio.run(loop())
+    except BrokenPipeError:
+        logging.getLogger(__name__).error("the client closed the connection")
+    except (KeyboardInterrupt, SystemExit):
+        pass
+    finally:
+        reading.shutdown(wait=False, cancel_futures=True)
+        server.shutdown()
+
+
+def _replay_initialize(server: DeckServer, body: bytes, msg_id, sent: dict) -> None:
+    """Let pygls handle an ``initialize`` that was answered already."""
+    import json
+
+    protocol = server.protocol
+    message = json.loads(body, object_hook=protocol.structure_message)
+
+    def compare(future) -> None:
+        try:
+            own = protocol._converter.unstructure(future.result())
+        except Exception as e:  # pygls would have answered with an error
+            logging.getLogger(__name__).error("initialize failed after it was answered: %s", e)
+            return
+        if own != sent:
+            logging.getLogger(__name__).warning(
+                "the early initialize answer differs from pygls' (regenerate server/lsp/capabilities.json): %s",
+                json.dumps(own, sort_keys=True))
+
+    protocol._execute_handler(msg_id, protocol._get_handler(t.INITIALIZE), args=(message.params,), callback=compare)
