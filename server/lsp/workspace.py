@@ -11,6 +11,7 @@ the open decks that use it.
 from __future__ import annotations
 
 import os
+import re
 import threading
 from dataclasses import dataclass
 from typing import Optional
@@ -23,6 +24,18 @@ from deckward.rules.config import CONFIG_NAME, Config, find_config, load_config
 from deckward.rules.engine import check_workspace, known_rule_ids
 
 from .positions import UTF16, PositionMap
+
+
+_LONE_SURROGATE = re.compile("[\ud800-\udfff]")
+
+
+def checkable(text: str) -> str:
+    """``text`` with lone surrogates (which JSON allows and no file can hold)
+    replaced by U+FFFD: one code point for one, and one UTF-16 unit for one,
+    so every position stays where it was."""
+    if text.isascii() or not _LONE_SURROGATE.search(text):
+        return text
+    return _LONE_SURROGATE.sub("\ufffd", text)
 
 
 def uri_to_path(uri: str) -> str:
@@ -84,7 +97,7 @@ class DeckWorkspace:
 
     # -- buffers ----------------------------------------------------------
     def set_buffer(self, uri: str, text: str) -> None:
-        self.overlay[uri_to_path(uri)] = text
+        self.overlay[uri_to_path(uri)] = checkable(text)
 
     def drop_buffer(self, uri: str) -> None:
         path = uri_to_path(uri)
@@ -128,12 +141,13 @@ class DeckWorkspace:
     def analyse(self, uri: str, text: str, version: Optional[int]) -> Analysis:
         """Resolve and check ``text`` as the document ``uri`` (thread-safe)."""
         path = uri_to_path(uri)
+        clean = checkable(text)
         with self.lock:
             config = self.config_for(path)
-            ws = resolve(path, self.loader, self.root_for(path, config), text=text)
+            ws = resolve(path, self.loader, self.root_for(path, config), text=clean)
             findings = check_workspace(ws, config)
             analysis = Analysis(uri, path, version, text, ws, findings, config,
-                                PositionMap(text, self.encoding, ws.root.index))
+                                PositionMap(clean, self.encoding, ws.root.index))
         return analysis
 
     def recheck_text(self, uri: str, text: str) -> list[Finding]:
