@@ -4,12 +4,10 @@ comments, strings and coordinate columns get nothing."""
 from __future__ import annotations
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
-from lsp_support import (SERVER_COMMAND, apply_text_edits, open_document, record_diagnostics, uri_of,
-                         wait_for_diagnostics, write_workspace)
+from lsp_support import apply_text_edits, client_fixture, open_document, uri_of, wait_for_diagnostics
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
@@ -22,18 +20,7 @@ HEAD = (
 )
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-completion")
-    write_workspace(root, {})
-    lsp_client.root = root
-    lsp_client.opened = 0
-    record_diagnostics(lsp_client)
-    result = await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    lsp_client.server_capabilities = result.capabilities
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-completion")
 
 
 async def complete(client, text: str, line: int, character: int) -> list[t.CompletionItem]:

@@ -5,14 +5,13 @@ from __future__ import annotations
 import os
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
 from deckward.grammar.formatter import format_text
 from deckward.rules.registry import get as get_rule
-from lsp_support import (SERVER_COMMAND, apply_text_edits, brief, change_document, open_document,
-                         record_diagnostics, uri_of, wait_for_diagnostics, write_workspace)
+from lsp_support import (apply_text_edits, brief, change_document, client_fixture, open_document, uri_of,
+                         wait_for_diagnostics, write_workspace)
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
@@ -59,16 +58,7 @@ state anion { geometry = optimize(cn)  level = tz  charge = -1  multiplicity = 1
 """
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-features")
-    write_workspace(root, {"no2.deck": NO2, "shared.deck": SHARED, "a.deck": USER_A, "b.deck": USER_B})
-    lsp_client.root = root
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-features", files={"no2.deck": NO2, "shared.deck": SHARED, "a.deck": USER_A, "b.deck": USER_B})
 
 
 async def open_fresh(client, name: str, text: str):

@@ -3,12 +3,10 @@ client: exact titles, preference and edits."""
 from __future__ import annotations
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
-from lsp_support import (SERVER_COMMAND, apply_text_edits, open_document, record_diagnostics, uri_of,
-                         wait_for_diagnostics, write_workspace)
+from lsp_support import apply_text_edits, client_fixture, open_document, uri_of, wait_for_diagnostics
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
@@ -17,17 +15,7 @@ CN = "geometry cn {\n  C  0.0  0.0  0.0\n  N  0.0  0.0  1.1718\n}\n"
 LEVEL = "level hf_adz { method = hf  basis = aug-cc-pvdz  reference = unrestricted }\n"
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-quick-fixes")
-    write_workspace(root, {}, keep=("unknown-method", "unknown-basis"))
-    lsp_client.root = root
-    lsp_client.opened = 0
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-quick-fixes", keep=("unknown-method", "unknown-basis"))
 
 
 async def fixes_for(client, text: str, code: str):

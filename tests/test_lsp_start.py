@@ -14,7 +14,7 @@ from pytest_lsp import client_capabilities
 
 from deckward.server.lsp import fast_start
 from deckward.server.lsp.server import build_server
-from lsp_support import open_document, session, uri_of, wait_for_diagnostics, write_workspace
+from lsp_support import open_document, session, uri_of, write_workspace
 
 PROFILES = os.listdir(os.path.join(os.path.dirname(__import__("pytest_lsp").__file__), "clients"))
 PROFILES = sorted(p[:-5].replace("_v", "@v").replace("_", "-") for p in PROFILES if p.endswith(".json"))
