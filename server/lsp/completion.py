@@ -23,8 +23,9 @@ from deckward.grammar.build import KEYS
 from deckward.grammar.resolve import Workspace
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
+from .core import DeckServer
+
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 _TOKEN = re.compile(
@@ -388,13 +389,14 @@ def with_edits(items: list[t.CompletionItem], ctx: Context, text: str, positions
     return items
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_COMPLETION, t.CompletionOptions(trigger_characters=TRIGGER_CHARACTERS))
-    async def complete(ls: "DeckServer", params: t.CompletionParams):
-        analysis: Optional["Analysis"] = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        offset = analysis.positions.offset(params.position)
-        ctx = context_at(analysis.text, offset)
-        items = with_edits(items_for(ctx, analysis.workspace), ctx, analysis.text, analysis.positions)
-        return t.CompletionList(is_incomplete=False, items=items)
+async def complete(ls: DeckServer, params: t.CompletionParams):
+    analysis: Optional["Analysis"] = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    offset = analysis.positions.offset(params.position)
+    ctx = context_at(analysis.text, offset)
+    items = with_edits(items_for(ctx, analysis.workspace), ctx, analysis.text, analysis.positions)
+    return t.CompletionList(is_incomplete=False, items=items)
+
+
+FEATURES = [(t.TEXT_DOCUMENT_COMPLETION, t.CompletionOptions(trigger_characters=TRIGGER_CHARACTERS), complete)]

@@ -7,16 +7,11 @@ the part of the text that changes.
 """
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 from lsprotocol import types as t
 
 from deckward.grammar.formatter import format_text
 
-from .actions import minimal_edit
-
-if TYPE_CHECKING:
-    from .server import DeckServer
+from .core import DeckServer, minimal_edit
 
 
 def refusal(analysis) -> str:
@@ -29,16 +24,17 @@ def refusal(analysis) -> str:
     return f"deckward: not formatted: {count}; line {first.span.line}: {first.message}"
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_FORMATTING)
-    async def formatting(ls: "DeckServer", params: t.DocumentFormattingParams):
-        analysis = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        formatted = format_text(analysis.text)
-        if formatted is None:
-            ls.window_show_message(t.ShowMessageParams(type=t.MessageType.Warning, message=refusal(analysis)))
-            return []
-        if formatted == analysis.text:
-            return []
-        return [minimal_edit(analysis, formatted)]
+async def formatting(ls: DeckServer, params: t.DocumentFormattingParams):
+    analysis = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    formatted = format_text(analysis.text)
+    if formatted is None:
+        ls.window_show_message(t.ShowMessageParams(type=t.MessageType.Warning, message=refusal(analysis)))
+        return []
+    if formatted == analysis.text:
+        return []
+    return [minimal_edit(analysis, formatted)]
+
+
+FEATURES = [(t.TEXT_DOCUMENT_FORMATTING, None, formatting)]

@@ -21,12 +21,10 @@ from lsprotocol import types as t
 from deckward.grammar import model as m
 from deckward.grammar.resolve import Workspace
 
-from .diagnostics import rule_url
+from .core import DeckServer, rule_url, target_at
 from .markdown import code, escape, link
-from .navigation import target_at
 
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 _L = "spdfghi"
@@ -236,13 +234,14 @@ def hover_text(analysis: "Analysis", offset: int) -> Optional[str]:
     return "\n\n---\n\n".join(parts) if parts else None
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_HOVER)
-    async def hover(ls: "DeckServer", params: t.HoverParams):
-        analysis = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        text = hover_text(analysis, analysis.positions.offset(params.position))
-        if text is None:
-            return None
-        return t.Hover(contents=t.MarkupContent(kind=t.MarkupKind.Markdown, value=text))
+async def hover(ls: DeckServer, params: t.HoverParams):
+    analysis = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    text = hover_text(analysis, analysis.positions.offset(params.position))
+    if text is None:
+        return None
+    return t.Hover(contents=t.MarkupContent(kind=t.MarkupKind.Markdown, value=text))
+
+
+FEATURES = [(t.TEXT_DOCUMENT_HOVER, None, hover)]

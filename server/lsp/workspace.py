@@ -13,8 +13,9 @@ from __future__ import annotations
 import os
 import re
 import threading
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import Optional
+from typing import Callable, Iterator, Optional
 
 from pygls.uris import from_fs_path, to_fs_path
 
@@ -80,14 +81,41 @@ class Analysis:
         return PositionMap(parsed.index.text, self.positions.encoding, parsed.index)
 
 
+class Buffers(Mapping):
+    """The overlay the ``Loader`` reads: path -> text of an open buffer.
+
+    The text itself stays in pygls' documents (held once); this maps paths
+    to their URIs and reads the document's current text when asked."""
+
+    def __init__(self, documents: Callable[[], Mapping]) -> None:
+        self.documents = documents
+        self.uris: dict[str, str] = {}
+
+    def __getitem__(self, path: str) -> str:
+        doc = self.documents().get(self.uris[path])
+        if doc is None:
+            raise KeyError(path)
+        return checkable(doc.source)
+
+    def __contains__(self, path) -> bool:
+        uri = self.uris.get(path)
+        return uri is not None and uri in self.documents()
+
+    def __iter__(self) -> Iterator[str]:
+        return (p for p in list(self.uris) if p in self)
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self)
+
+
 class DeckWorkspace:
     """Open buffers, configurations and the latest analysis of each buffer.
 
-    Analyses run on one worker thread at a time (``lock``); the overlay is
-    only written from the event loop."""
+    Analyses run on one worker thread at a time (``lock``); which buffers
+    are open is only changed from the event loop."""
 
-    def __init__(self) -> None:
-        self.overlay: dict[str, str] = {}
+    def __init__(self, documents: Callable[[], Mapping] = dict) -> None:
+        self.overlay = Buffers(documents)
         self.loader = Loader(self.overlay)
         self.folders: list[str] = []
         self.encoding = UTF16
@@ -96,12 +124,12 @@ class DeckWorkspace:
         self._configs: dict[str, tuple[tuple, Config]] = {}
 
     # -- buffers ----------------------------------------------------------
-    def set_buffer(self, uri: str, text: str) -> None:
-        self.overlay[uri_to_path(uri)] = checkable(text)
+    def open_buffer(self, uri: str) -> None:
+        self.overlay.uris[uri_to_path(uri)] = uri
 
     def drop_buffer(self, uri: str) -> None:
         path = uri_to_path(uri)
-        self.overlay.pop(path, None)
+        self.overlay.uris.pop(path, None)
         self.loader.forget(path)
         self.analyses.pop(uri, None)
 
