@@ -33,7 +33,7 @@ from pygls.lsp.client import LanguageClient
 from pygls.uris import from_fs_path
 
 from deckward.server.checking import check_paths
-from deckward.server.lsp.diagnostics import DEBOUNCE_S
+from deckward.server.lsp.core import DEBOUNCE_S
 
 SMALL = """\
 # Vertical electron affinity of NO2 (demo deck, invented geometry)
@@ -161,10 +161,14 @@ def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeat", type=int, default=10)
     args = ap.parse_args()
-    folder = tempfile.mkdtemp(prefix="deckward-bench-")
-    bare = bare_python_time(max(5, args.repeat))
-    fast = initialize_time(max(5, args.repeat))
-    slow = initialize_time(max(3, args.repeat // 2), slow=True)
+    with tempfile.TemporaryDirectory(prefix="deckward-bench-") as folder:
+        return measure(folder, args.repeat)
+
+
+def measure(folder: str, repeat: int) -> int:
+    bare = bare_python_time(max(5, repeat))
+    fast = initialize_time(max(5, repeat))
+    slow = initialize_time(max(3, repeat // 2), slow=True)
     print(f"python -c pass: {bare * 1000:.0f} ms; initialize answered after {fast * 1000:.0f} ms "
           f"= {fast / bare:.2f}x (goal <= 8x); without the early answer {slow * 1000:.0f} ms = {slow / bare:.2f}x")
     print(f"debounce in the server: {DEBOUNCE_S * 1000:.0f} ms (included in the LSP latency)")
@@ -174,9 +178,9 @@ def main() -> int:
         path = os.path.join(folder, name.replace(" ", "_") + ".deck")
         with open(path, "w", encoding="utf-8") as f:
             f.write(text)
-        lsp = statistics.median(asyncio.run(lsp_latencies(path, text, args.repeat)))
-        proc = cli_time(path, max(3, args.repeat // 2))
-        inproc = in_process_time(path, args.repeat)
+        lsp = statistics.median(asyncio.run(lsp_latencies(path, text, repeat)))
+        proc = cli_time(path, max(3, repeat // 2))
+        inproc = in_process_time(path, repeat)
         print(f"{name:<18}{text.count(chr(10)):>6}{lsp * 1000:>15.1f} ms{proc * 1000:>14.1f} ms"
               f"{inproc * 1000:>14.1f} ms{lsp / proc:>13.2f}{lsp / inproc:>13.2f}")
     return 0
