@@ -13,6 +13,7 @@ from typing import Optional
 
 from . import model as m
 from .findings import Applicability, Finding, Fix, Severity, Span, TextEdit
+from .numbers import MAX_COORDINATE, finite
 from .parser import ParseOutput, parse_text
 from .suggest import closest, edit_distance, replacement_fixes, suggest  # noqa: F401 (edit_distance re-exported)
 from .text_index import LineIndex
@@ -46,6 +47,7 @@ class _Builder:
         self.text = text
         self.index = index
         self.findings: list[Finding] = []
+        self.unusable: set[str] = set()  # names of statements left out for a bad value
 
     # -- helpers ----------------------------------------------------------
     def span_of(self, node, base: int, limit: int) -> Span:
@@ -69,6 +71,18 @@ class _Builder:
         close = suggest(word, candidates)
         self.error(rule, span, message + close.hint(), replacement_fixes(span, close))
 
+    def numbers(self, tokens, sp, what: str, limit: Optional[float] = None) -> Optional[tuple[float, ...]]:
+        """The tokens' values, or None after reporting each one that is not
+        finite (or larger than ``limit``)."""
+        values = []
+        for tok in tokens:
+            value, problem = finite(str(tok), limit)
+            if problem is not None:
+                shown = str(tok) if len(str(tok)) <= 24 else str(tok)[:20] + "..."
+                self.error("invalid-value", sp(tok), f"`{shown}` {problem} as {what}")
+            values.append(value)
+        return None if any(v is None for v in values) else tuple(values)
+
     # -- statements -------------------------------------------------------
     def build(self, out: ParseOutput) -> m.Deck:
         parts: dict[str, list] = {k: [] for k in ("uses", "study", "geometries", "basis_sets", "levels", "states", "derives")}
@@ -89,7 +103,9 @@ class _Builder:
                     else:
                         parts["study"].append(study)
                 elif kind == "geometry_stmt":
-                    parts["geometries"].append(self.geometry(tree, sp))
+                    geometry = self.geometry(tree, sp)
+                    if geometry is not None:
+                        parts["geometries"].append(geometry)
                 elif kind == "basis_set_stmt":
                     parts["basis_sets"].append(self.basis_set(tree, sp))
                 elif kind == "level_stmt":
@@ -105,7 +121,7 @@ class _Builder:
         comments = tuple(
             m.Comment(self.text[s + 1 : e], self.index.span(s, e), own) for s, e, own in out.comments
         )
-        broken = frozenset(c.name for c in out.broken if c.name)
+        broken = frozenset(c.name for c in out.broken if c.name) | frozenset(self.unusable)
         return m.Deck(
             path=self.path,
             text=self.text,
@@ -254,14 +270,19 @@ class _Builder:
         found = self.settings("geometry", items, sp)
         units = self.enum(found["units"][1], sp, "units", m.UNITS_LENGTH) if "units" in found else None
         atoms = []
+        usable = True
         for item in items:
             if getattr(item, "data", None) != "atom":
                 continue
             sym, x, y, z, *ghost = item.children
+            xyz = self.numbers((x, y, z), sp, "a coordinate", MAX_COORDINATE)
+            if xyz is None:
+                usable = False
+                continue
             atoms.append(
                 m.Atom(
                     m.Located(str(sym), sp(sym)),
-                    (float(x), float(y), float(z)),
+                    xyz,
                     (sp(x), sp(y), sp(z)),
                     bool(ghost),
                     sp(item),
@@ -269,6 +290,9 @@ class _Builder:
             )
         lb, rb = tree.children[2], tree.children[-1]
         body = self.index.span(sp(lb).end, max(sp(lb).end, sp(rb).start))
+        if not usable:  # like a statement that does not parse: left out, its name known
+            self.unusable.add(str(name_tok))
+            return None
         return m.Geometry(m.Located(str(name_tok), sp(name_tok)), sp(tree), units, tuple(atoms), body)
 
     def basis_set(self, tree, sp) -> m.BasisSet:
@@ -286,7 +310,10 @@ class _Builder:
                     "invalid-value", sp(letter), f"`{letter}` is not a shell letter (s, p, d, f, g, h, i)"
                 )
                 continue
-            value = float(exp)
+            found = self.numbers((exp,), sp, "an exponent")
+            if found is None:
+                continue
+            value = found[0]
             if not value > 0:
                 self.error("invalid-value", sp(exp), f"an exponent must be positive, not `{exp}`")
                 continue
@@ -368,7 +395,8 @@ class _Builder:
     def expr(self, t, sp) -> Optional[m.Expr]:
         kind = t.data
         if kind == "number":
-            return m.Number(float(t.children[0]), sp(t))
+            found = self.numbers((t.children[0],), sp, "a number")
+            return None if found is None else m.Number(found[0], sp(t))
         if kind == "energy":
             name = t.children[1]
             return m.EnergyOf(m.Located(str(name), sp(name)), sp(t))
@@ -381,6 +409,10 @@ class _Builder:
                 return None
             which, sign, count = match.groups()
             offset = 0
+            if count and len(count) > 6:
+                self.error("invalid-value", sp(orb), f"`{which}{sign}{count[:6]}...` ({len(count)} digits) is too far "
+                           "from the HOMO or LUMO to be an orbital")
+                return None
             if count:
                 offset = int(count) * (1 if sign == "+" else -1)
                 if (which.lower() == "homo" and offset > 0) or (which.lower() == "lumo" and offset < 0):

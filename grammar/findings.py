@@ -96,7 +96,7 @@ class Fix:
     def to_dict(self) -> dict:
         return {
             "title": self.title,
-            "applicability": self.applicability.value,
+            "safety": self.applicability.value,  # "safe" or "risky"
             "edits": [e.to_dict() for e in self.edits],
         }
 
@@ -177,3 +177,11 @@ class RuleInfo:
     fires_at: str = ""
     # The bad example after applying the rule's fix (tests check it).
     fixed_example: str = ""
+    # When the rule reports at another severity than ``severity``, in words
+    # ("error when an electron affinity depends on the anion").
+    severity_note: str = ""
+
+    @property
+    def severity_words(self) -> str:
+        """"warning", or "warning; error when ..." for a rule whose findings escalate."""
+        return self.severity.value + (f"; {self.severity_note}" if self.severity_note else "")

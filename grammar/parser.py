@@ -9,14 +9,12 @@ from __future__ import annotations
 
 import hashlib
 import os
-import tempfile
 from collections import OrderedDict
 from dataclasses import dataclass
-from importlib import resources
 from typing import Optional
 
 from .findings import Finding, Severity
-from .scanner import STATEMENT_KEYWORDS, Chunk, scan
+from .scanner import STATEMENT_KEYWORDS, Chunk, content_end, scan
 from .text_index import LineIndex
 
 MAX_SYNTAX_FINDINGS = 50
@@ -26,7 +24,10 @@ _parser = None
 
 
 def grammar_text() -> str:
-    return resources.files("deckward.grammar").joinpath("deck.lark").read_text(encoding="utf-8")
+    """The grammar file beside this module (read directly: importlib.resources
+    costs more to import than the read itself)."""
+    with open(os.path.join(os.path.dirname(os.path.abspath(__file__)), "deck.lark"), encoding="utf-8") as f:
+        return f.read()
 
 
 def _cache_dir() -> str:
@@ -48,6 +49,8 @@ def get_parser():
     text = grammar_text()
     options = dict(parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=False)
     digest = hashlib.sha256((text + lark.__version__).encode()).hexdigest()[:16]
+    import tempfile
+
     for folder in (_cache_dir(), tempfile.gettempdir()):
         try:
             os.makedirs(folder, exist_ok=True)
@@ -221,7 +224,10 @@ def _parse_chunk(parser, body: str, chunk_len: int):
 
     def on_error(e):
         errors.append(e)
-        return len(errors) <= MAX_SKIPS_PER_STATEMENT
+        if len(errors) > MAX_SKIPS_PER_STATEMENT:
+            return False
+        _drop_unfinished_setting(e, body)
+        return True
 
     try:
         tree = parser.parse(body, on_error=on_error)
@@ -241,18 +247,85 @@ def _parse_chunk(parser, body: str, chunk_len: int):
     return result
 
 
+def _drop_unfinished_setting(e, body: str) -> None:
+    """Recover from a setting typed without its value.
+
+    ``state cation { geometry  level = x }``, ``{ geometry =  level = x }``
+    (or either just before ``}``): Lark would skip the token it stumbled on
+    and read ``geometry = x`` or ``geometry = level``, so the settings after
+    the half-typed one change meaning (a level taken for a geometry, a key
+    set twice).  Instead forget the unfinished setting and give the parser
+    the tokens after it, as if it had not been typed yet; the finding then
+    names it (``e.unfinished``: start, end, message).  A lone key counts as
+    unfinished when what follows closes the block, starts a later line or is
+    itself a key (``x =``); ``method hf`` alone is a missing ``=``, reported
+    at ``hf``."""
+    import lark
+
+    ip = getattr(e, "interactive_parser", None)
+    if not isinstance(e, lark.exceptions.UnexpectedToken) or ip is None or e.token.start_pos is None:
+        return
+    state = ip.parser_state
+    values, token = state.value_stack, e.token
+
+    def top(n):  # the types of the last n values, when they are all tokens
+        last = values[-n:] if len(values) >= n else []
+        return [v.type for v in last] if last and all(isinstance(v, lark.Token) for v in last) else []
+
+    follows_key = token.type == "RBRACE" or body[token.end_pos :].lstrip().startswith("=")
+    if top(1) == ["NAME"] and "EQUAL" in e.expected and (follows_key or token.line > values[-1].line):
+        drop, refeed, typed_end = 1, [token], values[-1]       # `key` then `}` / `next = ...`
+        message = f"expected `=` and a value after `{values[-1]}`"
+    elif top(2) == ["NAME", "EQUAL"] and token.type == "RBRACE":
+        drop, refeed, typed_end = 2, [token], values[-1]       # `key =` then `}`
+        message = f"expected a value after `{values[-2]} =`"
+    elif top(3)[:2] == ["NAME", "EQUAL"] and token.type == "EQUAL" and _is_name(str(values[-1])):
+        drop, refeed, typed_end = 3, [values[-1], token], values[-2]   # `key =` then `next = ...`
+        message = f"expected a value after `{values[-3]} =`"
+    else:
+        return
+    key = values[-drop]
+    item_start = state.parse_conf.parse_table.states[state.state_stack[-drop - 1]]
+    if "RBRACE" not in item_start:  # not where an item of a block starts
+        return
+    first = refeed[0]
+    if first.type not in item_start:
+        if "NAME" not in item_start or not _is_name(str(first)):
+            return
+        refeed[0] = lark.Token.new_borrow_pos("NAME", str(first), first)
+    saved = (list(state.state_stack), list(values))
+    del state.state_stack[-drop:]
+    del values[-drop:]
+    try:
+        for t in refeed:
+            ip.feed_token(t)
+    except lark.exceptions.UnexpectedInput:
+        state.state_stack[:], values[:] = saved
+        return
+    e.unfinished = (key.start_pos, typed_end.end_pos, message)
+
+
+def _is_name(text: str) -> bool:
+    """Whether ``text`` could be a NAME of deck.lark (an ASCII identifier)."""
+    return text.isascii() and text.isidentifier()
+
+
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
     import lark
+
+    unfinished = getattr(e, "unfinished", None)
+    if unfinished is not None and unfinished[0] < chunk_len:
+        return unfinished[0], min(unfinished[1], chunk_len), unfinished[2]
 
     if isinstance(e, lark.exceptions.UnexpectedToken):
         tok = e.token
         if tok.type == "$END" or tok.start_pos is None:
-            pos = min(len(body.rstrip()), chunk_len)
+            pos = content_end(body[:chunk_len])
             return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
         start = min(tok.start_pos, chunk_len)
         end = min(tok.end_pos or start, chunk_len)
         if tok.type == "RBRACE" and start >= chunk_len:  # a virtual closing brace
-            pos = min(len(body[:chunk_len].rstrip()), chunk_len)
+            pos = content_end(body[:chunk_len])
             return (max(0, pos - 1), pos, f"unexpected end of the block: expected {describe_expected(e.expected)}")
         return start, end, f"expected {describe_expected(e.expected)} but found {_describe_token(tok)}"
     if isinstance(e, lark.exceptions.UnexpectedCharacters):
@@ -266,6 +339,6 @@ def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
             return pos, pos + 1, f"unexpected character `{shown}`: expected {describe_expected(allowed)}"
         return pos, pos + 1, f"unexpected character `{shown}`"
     if isinstance(e, lark.exceptions.UnexpectedEOF):
-        pos = min(len(body.rstrip()), chunk_len)
+        pos = content_end(body[:chunk_len])
         return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
     return 0, 0, f"the statement could not be parsed ({type(e).__name__})"

@@ -17,10 +17,9 @@ from typing import Callable, Optional
 from . import model as m
 from .build import build_deck
 from .findings import Finding, Related, Severity, Span
+from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .suggest import replacement_fixes, suggest
 from .text_index import LineIndex
-
-MAX_FILE_BYTES = 20 * 1024 * 1024
 
 
 @dataclass(frozen=True)
@@ -79,8 +78,7 @@ class Loader:
         key = os.path.abspath(path)
         if key in self.overlay:
             return self.parse_text(path, self.overlay[key])
-        with open(path, "rb") as f:
-            data = f.read(MAX_FILE_BYTES + 1)
+        data = read_regular(path, MAX_FILE_BYTES)
         extra = None
         if len(data) > MAX_FILE_BYTES:
             data = data[:MAX_FILE_BYTES]
@@ -247,6 +245,11 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
     # -- load use files (depth first, each once) -----------------------------
     def visit(pf: ParsedFile, stack: tuple[str, ...]) -> None:
         for use in pf.deck.uses:
+            problem = path_problem(use.path.value)
+            if problem is not None:
+                findings.append(Finding("use-outside-workspace", Severity.ERROR,
+                                        f"`{shown(use.path.value)}` cannot be read ({problem})", use.path.span))
+                continue
             target = os.path.normpath(os.path.join(os.path.dirname(pf.path), use.path.value))
             real = os.path.realpath(target)
             where = use.path.span
@@ -269,7 +272,7 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
                 continue
             except OSError as e:
                 reason = "does not exist" if isinstance(e, FileNotFoundError) else f"cannot be read ({e.strerror or e})"
-                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{use.path.value}` {reason}", where))
+                findings.append(Finding("use-outside-workspace", Severity.ERROR, f"`{shown(use.path.value)}` {reason}", where))
                 continue
             files.append(used)
             findings.extend(used.findings)
@@ -369,6 +372,24 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
 
     findings.sort(key=Finding.sort_key)
     return Workspace(root, tuple(files), root_dir, definitions, states, tuple(references), tuple(findings), broken)
+
+
+def shown(text: str) -> str:
+    """``text`` fit for a message: control characters and lone surrogates
+    written as escapes, so a message can always be printed and encoded."""
+    out = []
+    for ch in text:
+        code = ord(ch)
+        if code < 0x20 or code == 0x7F or 0xD800 <= code <= 0xDFFF:
+            out.append(f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def inside_root(path: str, root: str) -> bool:
+    """``path`` lies in the folder ``root`` (both already resolved)."""
+    return _inside(path, root)
 
 
 def _inside(path: str, root: str) -> bool:

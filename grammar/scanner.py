@@ -16,6 +16,9 @@ STATEMENT_KEYWORDS = frozenset({"use", "study", "geometry", "basis_set", "level"
 # Tokens after which a keyword-looking word is a name, not a new statement.
 _CONTINUATIONS = frozenset(STATEMENT_KEYWORDS | {"as", "in", "=", "(", ",", ":", "+", "-", "*", "/"})
 
+# Words that continue a statement on a later line (`derive ea\n  as ...`).
+_INFIXES = frozenset({"as", "in"})
+
 _TOKEN = re.compile(
     r"""
     (?P<ws>[ \t\f\r\ufeff]+)
@@ -94,23 +97,27 @@ def scan(text: str) -> ScanResult:
             continue
         value = text[start:end]
         low = value.lower()
-        if kind == "ident" and low in STATEMENT_KEYWORDS and prev not in _CONTINUATIONS:
+        if kind == "ident" and low in STATEMENT_KEYWORDS and _starts_statement(
+            tokens, i, n, text, low, at_line_start, bool(blocks) or parens > 0, prev in _CONTINUATIONS
+        ):
+            if blocks:
+                for b in blocks:
+                    unclosed_all.append((b, start, low))
+                chunks[-1].unclosed.extend(blocks)
+                blocks = []
+            parens = 0
+            chunks[-1].end = start
             nxt = _next_significant(tokens, i + 1, n)
-            nxt_kind = nxt[0] if nxt else None
-            shaped = nxt_kind == "ident" or (low in ("use", "study") and nxt_kind == "string") or (
-                low == "study" and nxt_kind == "open"
-            )
-            if shaped and ((not blocks and parens == 0) or at_line_start):
-                if blocks:
-                    for b in blocks:
-                        unclosed_all.append((b, start, low))
-                    chunks[-1].unclosed.extend(blocks)
-                    blocks = []
-                parens = 0
-                chunks[-1].end = start
-                name = text[nxt[1] : nxt[2]] if nxt_kind == "ident" else None
-                chunks.append(Chunk(start, len(text), low, name))
-                current_keyword = (low, start)
+            name = text[nxt[1] : nxt[2]] if nxt and nxt[0] == "ident" else None
+            chunks.append(Chunk(start, len(text), low, name))
+            current_keyword = (low, start)
+        elif (kind == "ident" and at_line_start and not blocks and parens == 0
+              and prev not in _CONTINUATIONS and low not in _INFIXES):
+            # A word typed after a finished statement (`le` on its way to
+            # `level`) is a statement of its own, not part of the one before.
+            chunks[-1].end = start
+            chunks.append(Chunk(start, len(text)))
+            current_keyword = None
         if kind == "open":
             kw = current_keyword or ("", start)
             blocks.append(OpenBlock(kw[0], kw[1], start))
@@ -133,6 +140,61 @@ def scan(text: str) -> ScanResult:
             unclosed_all.append((b, len(text), None))
         chunks[-1].unclosed.extend(blocks)
     return ScanResult(chunks, comments, unclosed_all, strays)
+
+
+def content_end(text: str) -> int:
+    """Where the last token of ``text`` that is not a comment ends: the place
+    to report "unexpected end" at, rather than after trailing comments and
+    blank lines (which belong, in an editor, to whatever follows)."""
+    end = 0
+    for m in _TOKEN.finditer(text):
+        if m.lastgroup not in ("ws", "nl", "comment"):
+            end = m.end()
+    return end
+
+
+def _starts_statement(tokens, i, n, text, keyword, at_line_start, nested, after_continuation) -> bool:
+    """Whether the statement keyword ``tokens[i]`` starts a new statement.
+
+    Outside any block a keyword starts a statement unless it continues the
+    one before (``energy(state)``, ``geometry level {``).  Inside an open
+    block, or after a token that expects more, it is a key being typed
+    (``state cation { geometry = cn  level``) unless a whole statement head
+    follows on a fresh line, which no setting can look like: that is a
+    missing ``}``, reported where its block was opened.  So a half-typed
+    word never swallows the statements after it."""
+    if at_line_start and _has_statement_head(tokens, i, n, text, keyword):
+        return True
+    return not nested and not after_continuation
+
+
+def _has_statement_head(tokens, i, n, text, keyword) -> bool:
+    """``KEYWORD name {``, ``derive name =``/``derive name as``, ``use "..."``,
+    ``study "..."`` or ``study {`` starting at ``tokens[i]``."""
+    j = _next_index(tokens, i + 1, n)
+    if j is None:
+        return False
+    first = tokens[j][0]
+    if keyword == "use":
+        return first == "string"
+    if keyword == "study":
+        return first in ("string", "open")
+    k = _next_index(tokens, j + 1, n) if first == "ident" else None
+    if k is None:
+        return False
+    kind, start, end = tokens[k]
+    if keyword == "derive":
+        word = text[start:end]
+        return (kind == "other" and word.startswith("=")) or (kind == "ident" and word.lower() == "as")
+    return kind == "open"
+
+
+def _next_index(tokens, i, n):
+    while i < n:
+        if tokens[i][0] != "nl":
+            return i
+        i += 1
+    return None
 
 
 def _next_significant(tokens, i, n):

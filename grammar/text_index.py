@@ -57,9 +57,22 @@ class LineIndex:
         return min(start + max(column, 1) - 1, self.line_end(line))
 
     def span(self, start: int, end: int) -> Span:
+        """The span of [start, end), clamped to the text.  Building the model
+        asks for one per token, so this avoids a second search when the end
+        lies on the start's line (nearly always)."""
         n = len(self.text)
-        start = max(0, min(start, n))
-        end = max(start, min(end, n))
-        line, column = self.position(start)
-        end_line, end_column = self.position(end)
-        return Span(self.path, start, end, line, column, end_line, end_column)
+        if start < 0:
+            start = 0
+        elif start > n:
+            start = n
+        if end > n:
+            end = n
+        if end < start:
+            end = start
+        starts = self._starts
+        line = bisect.bisect_right(starts, start) - 1
+        first = starts[line]
+        if line + 1 == len(starts) or end < starts[line + 1]:
+            return Span(self.path, start, end, line + 1, start - first + 1, line + 1, end - first + 1)
+        end_line = bisect.bisect_right(starts, end) - 1
+        return Span(self.path, start, end, line + 1, start - first + 1, end_line + 1, end - starts[end_line] + 1)

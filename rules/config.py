@@ -7,6 +7,7 @@ every problem (an unknown key, a bad severity) is reported at its line.
 from __future__ import annotations
 
 import fnmatch
+import math
 import os
 from dataclasses import dataclass, field
 from typing import Optional
@@ -19,7 +20,7 @@ CONFIG_NAME = "deckward.yaml"
 SEVERITY_WORDS = ("error", "warning", "info", "off")
 TOP_KEYS = ("rules", "exclude", "probe", "run")
 PROBE_KEYS = ("time_limit_s", "max_basis_functions", "threshold_ev")
-RUN_KEYS = ("max_memory_mb", "threads", "jobs", "time_limit_s")
+RUN_KEYS = ("max_memory_mb", "threads", "jobs", "time_limit_s", "max_basis_functions")
 
 CONFIG_RULE = RuleInfo(
     id="invalid-config",
@@ -147,8 +148,9 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
                 except (TypeError, ValueError):
                     report(v, f"`{key}.{k.value}` must be a positive number")
                     continue
-                if not number > 0:
-                    report(v, f"`{key}.{k.value}` must be a positive number")
+                if not number > 0 or not math.isfinite(number):
+                    report(v, f"`{key}.{k.value}` must be a positive number"
+                           + (", not infinite" if number == float("inf") else ""))
                     continue
                 target[k.value] = number
     return cfg

@@ -8,7 +8,6 @@ command line and the language server alike.
 """
 from __future__ import annotations
 
-import traceback
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding
@@ -16,12 +15,14 @@ from deckward.grammar.resolve import Workspace
 
 from .config import CONFIG_RULE, Config
 from .context import Context
-from .registry import PROBE_MODULE, all_rules
+from .registry import PROBE_MODULE, KnownRuleIds, all_rules, static_rules
 from .suppressions import apply_suppressions
 
 
-def known_rule_ids() -> set[str]:
-    return set(all_rules()) | {CONFIG_RULE.id}
+def known_rule_ids() -> KnownRuleIds:
+    """Every rule id (a set-like object that imports the probes only when
+    asked about an id that is not a static rule's)."""
+    return KnownRuleIds({CONFIG_RULE.id})
 
 
 def check_workspace(
@@ -41,7 +42,7 @@ def check_workspace(
     selected = set(select) if select is not None else None
     findings: list[Finding] = list(ws.findings)
     ran: set[str] = set()
-    for rule in all_rules().values():
+    for rule in (all_rules() if probed else static_rules()).values():
         if selected is not None and rule.id not in selected:
             continue
         if config.severity_for(rule.id, rule.info.severity) is None:
@@ -54,10 +55,12 @@ def check_workspace(
         try:
             findings.extend(rule.check(Context(ws, rule.info)))
         except Exception as e:  # one broken rule must not hide the others
+            import traceback
+
             tb = traceback.extract_tb(e.__traceback__)
             where = f" ({tb[-1].filename.rsplit('/', 1)[-1]}:{tb[-1].lineno})" if tb else ""
             findings.append(Finding(
-                "internal-error", all_rules()["internal-error"].info.severity,
+                "internal-error", static_rules()["internal-error"].info.severity,
                 f"rule `{rule.id}` failed: {type(e).__name__}: {e}{where}; its findings are missing",
                 ws.root.index.span(0, 0),
             ))

@@ -117,6 +117,35 @@ METHODS: tuple[MethodInfo, ...] = (
 )
 
 
+# Methods of the trade that deckward recognises but does not judge or run:
+# their inputs (an active space, a target-state count, a self-energy) are
+# not part of the deck language, so no rule can reason about them and the
+# runner cannot build them.  Each maps to what it is, for the message.
+RECOGNISED_ONLY: dict[str, str] = {
+    "casscf": "a multiconfigurational method (complete active space SCF)",
+    "rasscf": "a multiconfigurational method (restricted active space SCF)",
+    "mcscf": "a multiconfigurational SCF method",
+    "casci": "a multiconfigurational method (complete active space CI)",
+    "caspt2": "a multireference perturbation theory (CASPT2)",
+    "nevpt2": "a multireference perturbation theory (NEVPT2)",
+    "mrci": "a multireference configuration interaction",
+    "mrci+q": "a multireference configuration interaction (with the Davidson correction)",
+    "dmrg": "a density-matrix renormalisation group method",
+    "ccsdt": "coupled cluster with full triples (CCSDT)",
+    "ccsdt(q)": "coupled cluster with full triples and perturbative quadruples",
+    "eom-ccsd": "an equation-of-motion coupled-cluster method",
+    "eom-ip-ccsd": "an equation-of-motion coupled-cluster method for ionised states",
+    "eom-ea-ccsd": "an equation-of-motion coupled-cluster method for electron-attached states",
+    "cc2": "an approximate coupled-cluster method for excited states",
+    "adc(2)": "an algebraic-diagrammatic construction for excited or ionised states",
+    "cis": "configuration interaction with single excitations (excited states)",
+    "tddft": "time-dependent density functional theory (excited states)",
+    "gw": "a Green's-function (GW) method for quasiparticle energies",
+    "g0w0": "a Green's-function (GW) method for quasiparticle energies",
+    "ovgf": "an outer-valence Green's-function method for ionization energies",
+}
+
+
 def _norm(word: str) -> str:
     return word.strip().lower().replace("-", "").replace("_", "").replace(" ", "")
 
@@ -147,16 +176,29 @@ def all_names() -> list[str]:
     return sorted(names)
 
 
+def recognised_only(word: str) -> str | None:
+    """What a method deckward recognises but cannot judge or run is (see
+    ``RECOGNISED_ONLY``), or None."""
+    return {_norm(k): v for k, v in RECOGNISED_ONLY.items()}.get(_norm(word))
+
+
 def closest(word: str, n: int = 3) -> list[str]:
-    """Method names most like ``word`` (did-you-mean), best first."""
+    """Method names most like ``word`` (did-you-mean), best first.
+
+    A method deckward recognises but does not run gets no suggestion (casscf
+    is no misspelt hf), and a candidate must be about as long as the word: a
+    shared tail like ``scf`` is no typo of ``casscf`` (common practice, no
+    source: a typo changes a letter or two)."""
     from deckward.grammar.suggest import closest as nearest
 
     key = _norm(word)
-    if not key or n <= 0:
+    if not key or n <= 0 or recognised_only(word) is not None:
         return []
     table = _by_word()
     out: list[str] = []
     for hit in nearest(key, table, n=4 * n, key=_norm):
+        if abs(len(hit) - len(key)) > max(1, len(key) // 3):
+            continue
         name = table[hit].name
         if name not in out:
             out.append(name)

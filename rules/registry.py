@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import importlib
 import pkgutil
+from collections.abc import Set as AbstractSet
 from dataclasses import dataclass
 from typing import Callable, Iterable, Optional
 
@@ -46,10 +47,15 @@ INTERNAL_RULES = (
 )
 
 
-def all_rules() -> dict[str, Rule]:
-    """Every rule by id, in catalogue order (language rules first)."""
-    global _RULES
-    if _RULES is None:
+_STATIC: Optional[dict[str, Rule]] = None
+
+
+def static_rules() -> dict[str, Rule]:
+    """Every rule except the probes', in catalogue order: what a check
+    without ``--probe`` runs.  It does not import the probes package, which
+    only probe runs need."""
+    global _STATIC
+    if _STATIC is None:
         rules: dict[str, Rule] = {}
         for info in LANGUAGE_RULES:
             rules[info.id] = Rule(info, None, "deckward.grammar")
@@ -61,15 +67,47 @@ def all_rules() -> dict[str, Rule]:
                 continue
             rules[info.id] = Rule(info, getattr(mod, "check", None), mod.__name__)
         from .config import CONFIG_RULE
-        from .probes import PROBE_RULES
         from .suppressions import SUPPRESSION_RULES
 
         for info in SUPPRESSION_RULES + (CONFIG_RULE,) + INTERNAL_RULES:
             rules.setdefault(info.id, Rule(info, None, "deckward.rules"))
+        _STATIC = rules
+    return _STATIC
+
+
+def all_rules() -> dict[str, Rule]:
+    """Every rule by id, in catalogue order (language rules first, probes last)."""
+    global _RULES
+    if _RULES is None:
+        rules = dict(static_rules())
+        from .probes import PROBE_RULES
+
         for info in PROBE_RULES:
             rules.setdefault(info.id, Rule(info, None, PROBE_MODULE))
         _RULES = rules
     return _RULES
+
+
+class KnownRuleIds(AbstractSet):
+    """The set of rule ids, for checking the ids a configuration or an
+    ``# allow:`` names.  The probes' ids are looked up only when an id is not
+    a static rule's, so checking a deck does not import the probes."""
+
+    def __init__(self, extra: Iterable[str] = ()) -> None:
+        self.extra = frozenset(extra)
+
+    def __contains__(self, rule_id: object) -> bool:
+        return rule_id in static_rules() or rule_id in self.extra or rule_id in all_rules()
+
+    def __iter__(self):
+        return iter(list(all_rules()) + sorted(self.extra - set(all_rules())))
+
+    def __len__(self) -> int:
+        return len(set(all_rules()) | self.extra)
+
+    @classmethod
+    def _from_iterable(cls, it) -> set:
+        return set(it)  # set operations give plain sets
 
 
 def get(rule_id: str) -> Optional[Rule]:

@@ -36,6 +36,15 @@ ENERGY_UNITS: dict[str, float] = {
 }
 
 
+# How each unit word is written for a reader (SI symbols: eV, kJ/mol).
+UNIT_SYMBOLS: dict[str, str] = {"hartree": "hartree", "ev": "eV", "kcal/mol": "kcal/mol", "kj/mol": "kJ/mol"}
+
+
+def unit_symbol(unit: str) -> str:
+    """``ev`` -> ``eV``: the unit as printed in tables and messages."""
+    return UNIT_SYMBOLS.get(unit.strip().lower(), unit)
+
+
 def _per_hartree(unit: str) -> float:
     try:
         return ENERGY_UNITS[unit.strip().lower()]

@@ -5,16 +5,28 @@ fsynced, given the original's permissions and renamed over the original: a
 reader (or a crash) sees either the old file or the new one, never half of
 each.  The original is compared with the snapshot taken when it was read,
 just before the rename, so an edit made meanwhile (an editor saving the
-file) is not overwritten.  A read-only file is refused even when the process
-could override the permission (root), because read-only is the owner's word.
+file) is not overwritten; the old file is kept under a second name across the
+rename and compared once more afterwards, so a write that lands in the very
+last moment is put back rather than lost.  A read-only file is refused even
+when the process could override the permission (root), because read-only is
+the owner's word; a file with other hard links is refused, because replacing
+it would leave the other names holding the old text.  Temporary files carry
+the writer's process id, so ones left by a killed writer are recognised and
+removed by the next write in that folder.
 """
 from __future__ import annotations
 
 import hashlib
 import os
+import re
+import secrets
 import stat
-import tempfile
 from dataclasses import dataclass
+
+from deckward.grammar.safe_open import MAX_FILE_BYTES, read_regular
+
+_OWN_TEMP = re.compile(r"^\.(?P<base>.+)\.(?P<pid>\d+)\.[0-9a-f]{12}\.deckward-(tmp|keep)$")
+STALE_AFTER_S = 60.0  # a temporary file younger than this may belong to a write in progress
 
 
 class WriteRefused(Exception):
@@ -38,9 +50,10 @@ class Snapshot:
 
 def read_snapshot(path: str) -> Snapshot:
     """Read ``path`` and remember its state (raises OSError)."""
-    with open(path, "rb") as f:
-        st = os.fstat(f.fileno())
-        data = f.read()
+    st = os.stat(path)
+    data = read_regular(path, MAX_FILE_BYTES)
+    if len(data) > MAX_FILE_BYTES:
+        raise OSError(27, f"it is larger than {MAX_FILE_BYTES // (1024 * 1024)} MB", path)
     return Snapshot(path, data, st.st_size, st.st_mtime_ns, st.st_ino)
 
 
@@ -50,10 +63,66 @@ def unchanged_since(snapshot: Snapshot) -> bool:
         st = os.stat(snapshot.path)
         if st.st_size != snapshot.size or st.st_ino != snapshot.inode:
             return False
-        with open(snapshot.path, "rb") as f:
-            return f.read() == snapshot.data
+        return read_regular(snapshot.path, snapshot.size) == snapshot.data
     except OSError:
         return False
+
+
+def _holds_snapshot(path: str, snapshot: Snapshot) -> bool:
+    """``path`` is the snapshot's file (same inode) with the same bytes."""
+    try:
+        return os.stat(path).st_ino == snapshot.inode and read_regular(path, snapshot.size) == snapshot.data
+    except OSError:
+        return False
+
+
+def _own_name(target: str, kind: str) -> str:
+    folder, base = os.path.split(target)
+    return os.path.join(folder, f".{base}.{os.getpid()}.{secrets.token_hex(6)}.deckward-{kind}")
+
+
+def _pid_alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:
+        return True  # exists, owned by someone else
+    return True
+
+
+def clean_stale_temporaries(folder: str) -> list[str]:
+    """Remove temporary files of our own naming whose writer is gone (its
+    process no longer exists and the file is older than STALE_AFTER_S);
+    returns the names removed."""
+    import time
+
+    removed = []
+    try:
+        names = os.listdir(folder or ".")
+    except OSError:
+        return removed
+    now = time.time()
+    for name in names:
+        match = _OWN_TEMP.match(name)
+        if match is None:
+            continue
+        path = os.path.join(folder, name)
+        try:
+            st = os.lstat(path)
+        except OSError:
+            continue
+        if not stat.S_ISREG(st.st_mode) or now - st.st_mtime < STALE_AFTER_S:
+            continue
+        pid = int(match.group("pid"))
+        if pid != os.getpid() and _pid_alive(pid):
+            continue
+        try:
+            os.unlink(path)
+            removed.append(name)
+        except OSError:
+            pass
+    return removed
 
 
 def _is_read_only(path: str, st: os.stat_result) -> bool:
@@ -70,15 +139,23 @@ def write_atomically(snapshot: Snapshot, data: bytes) -> None:
         st = os.stat(target)
     except OSError as e:
         raise WriteRefused(f"it can no longer be read ({e.strerror or e})")
+    if not stat.S_ISREG(st.st_mode):
+        raise WriteRefused("it is not a regular file")
     if _is_read_only(target, st):
         raise WriteRefused("it is read-only")
+    folder = os.path.dirname(target) or "."
+    clean_stale_temporaries(folder)
+    if st.st_nlink > 1:
+        raise WriteRefused(f"it has {st.st_nlink} hard links, and replacing it would leave the other names "
+                           "with the old text")
     if not unchanged_since(snapshot):
         raise WriteRefused("it changed on disk while being fixed")
-    folder = os.path.dirname(target) or "."
+    tmp = _own_name(target, "tmp")
     try:
-        fd, tmp = tempfile.mkstemp(dir=folder, prefix="." + os.path.basename(target) + ".", suffix=".tmp")
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o600)
     except OSError as e:
         raise WriteRefused(f"no temporary file can be made in its folder ({e.strerror or e})")
+    keep = None
     try:
         try:
             with os.fdopen(fd, "wb") as f:
@@ -94,18 +171,36 @@ def write_atomically(snapshot: Snapshot, data: bytes) -> None:
             raise WriteRefused(f"the new text could not be written ({e.strerror or e})")
         if not unchanged_since(snapshot):  # the last moment before the rename
             raise WriteRefused("it changed on disk while being fixed")
+        keep = _own_name(target, "keep")
+        try:
+            os.link(target, keep)  # the old file, reachable after the rename
+        except OSError:
+            keep = None  # no hard links on this file system: the check above is the last one
         try:
             os.replace(tmp, target)
         except OSError as e:
             raise WriteRefused(f"it could not be replaced ({e.strerror or e})")
         tmp = None
+        if keep is not None and not _holds_snapshot(keep, snapshot):
+            # written to in place between the last check and the rename:
+            # put that text back rather than lose it
+            try:
+                os.replace(keep, target)
+                keep = None
+            except OSError as e:
+                kept, keep = keep, None  # never delete the only copy of that text
+                raise WriteRefused(f"it changed on disk while being fixed, and its text is kept in {kept} "
+                                   f"({e.strerror or e})")
+            _fsync_folder(folder)
+            raise WriteRefused("it changed on disk while being fixed")
         _fsync_folder(folder)
     finally:
-        if tmp is not None:
-            try:
-                os.unlink(tmp)
-            except OSError:
-                pass
+        for leftover in (tmp, keep):
+            if leftover is not None:
+                try:
+                    os.unlink(leftover)
+                except OSError:
+                    pass
 
 
 def _fsync_folder(folder: str) -> None:

@@ -10,9 +10,11 @@ from dataclasses import dataclass, field
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Severity
-from deckward.grammar.resolve import Loader, resolve
+from deckward.grammar.resolve import Loader, resolve, shown
 from deckward.rules.config import Config, find_config, load_config
 from deckward.rules.engine import check_workspace, dedupe, known_rule_ids
+
+from .scale_options import IN_PROCESS_BELOW
 
 
 class UsageError(Exception):
@@ -43,9 +45,13 @@ class CheckResult:
         return c
 
 
-def discover(paths: Iterable[str], config: Config) -> list[str]:
+def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] = None) -> list[str]:
     """Deck files named or found below the given paths, in a stable order.
-    Raises UsageError for a path that does not exist."""
+    Raises UsageError for a path that does not exist.  Found below a
+    folder, only regular files inside the workspace count: a FIFO or device
+    named ``*.deck`` would hang the reader, and a link out of the workspace
+    would read (and let ``--fix`` write) a file that is not the project's;
+    each one skipped adds a note to ``skipped``."""
     out: list[str] = []
     seen: set[str] = set()
     for p in paths:
@@ -57,6 +63,7 @@ def discover(paths: Iterable[str], config: Config) -> list[str]:
                 dirs[:] = sorted(d for d in dirs if not d.startswith("."))
                 candidates.extend(os.path.join(folder, f) for f in sorted(files) if f.endswith(".deck"))
             candidates = [c for c in candidates if not config.is_excluded(c)]
+            candidates = confined(candidates, root_for(p, config, p), skipped)
         elif os.path.exists(p):
             raise UsageError(f"{p}: not a file or folder")
         else:
@@ -67,6 +74,25 @@ def discover(paths: Iterable[str], config: Config) -> list[str]:
                 seen.add(key)
                 out.append(os.path.normpath(c))
     return out
+
+
+def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = None) -> list[str]:
+    from deckward.grammar.resolve import inside_root
+    from deckward.grammar.safe_open import is_regular_file
+
+    kept = []
+    real_root = os.path.realpath(root)
+    for c in candidates:
+        if not is_regular_file(c):
+            why = "it is not a regular file"
+        elif not inside_root(os.path.realpath(c), real_root):
+            why = "it is a link to a file outside the workspace"
+        else:
+            kept.append(c)
+            continue
+        if skipped is not None:
+            skipped.append(f"deckward: skipped {shown(os.path.normpath(c))}: {why}")
+    return kept
 
 
 def config_for(paths: list[str], explicit: Optional[str]) -> Config:
@@ -89,7 +115,7 @@ def root_for(path: str, config: Config, given: str) -> str:
 
 def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
                 loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None) -> CheckResult:
+                cache_dir: Optional[str] = None, cache_from: int = 1) -> CheckResult:
     """Check every deck below ``paths``.  With ``probe``, the PySCF probes
     run too (``deckward.rules.probes``) and their findings go through the
     same severity and suppression handling.
@@ -97,18 +123,26 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     ``jobs``: worker processes (0: one per core); ``cache_dir``: a findings
     cache folder (None: no cache).  Both go through
     ``deckward.server.parallel_check``; the findings are the same either
-    way.  A loader with unsaved editor text is never cached or shared."""
+    way.  ``cache_from``: use the cache only from this many decks on (the
+    command line's default cache is not worth opening for one deck).  A
+    loader with unsaved editor text is never cached or shared.
+
+    Few decks without a cache are checked right here: the single-deck path
+    imports neither the parallel checker nor the cache."""
     config = config or config_for(paths, config_path)
     findings: list[Finding] = list(config.findings)
     files: list[str] = []
     tasks = []
+    skipped: list[str] = []
     for given in paths:
-        for path in discover([given], config):
+        for path in discover([given], config, skipped):
             files.append(path)
             tasks.append((path, root_for(path, config, given)))
+    if (loader is not None and loader.overlay) or len(tasks) < cache_from:
+        cache_dir = None
     if loader is not None and loader.overlay:
-        jobs, cache_dir = 1, None
-    if jobs == 1 and cache_dir is None:
+        jobs = 1
+    if cache_dir is None and (jobs == 1 or len(tasks) < IN_PROCESS_BELOW):
         loader = loader or Loader()
         for path, root in tasks:
             try:
@@ -121,7 +155,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
 
                 extra = run_probes(ws, config)
             findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
-        return CheckResult(files, dedupe(findings), config)
+        return CheckResult(files, dedupe(findings), config, notes=skipped)
 
     from .parallel_check import DeckUnreadable, Task, check_tasks
 
@@ -131,7 +165,7 @@ def check_paths(paths: list[str], config: Optional[Config] = None, config_path: 
     except DeckUnreadable as e:
         raise UsageError(str(e))
     findings.extend(found)
-    return CheckResult(files, dedupe(findings), config, notes=list(stats.notes), stats=stats)
+    return CheckResult(files, dedupe(findings), config, notes=skipped + list(stats.notes), stats=stats)
 
 
 def exceeds(findings: Iterable[Finding], fail_on: str) -> bool:

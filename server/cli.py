@@ -13,6 +13,7 @@ import importlib
 import importlib.util
 import os
 import sys
+from typing import Optional
 
 from deckward import __version__
 
@@ -34,11 +35,16 @@ class _Parser(argparse.ArgumentParser):
         sys.exit(2)
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(only: Optional[str] = None) -> argparse.ArgumentParser:
+    """The whole command line, or with ``only`` just that subcommand: each
+    command module imports what its command needs, so ``deckward check``
+    does not pay for the formatter, the runner or the language server."""
     parser = _Parser(prog="deckward", description="Check, run and probe calculation decks.")
     parser.add_argument("--version", action="version", version=f"deckward {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name, module in COMMANDS.items():
+        if only is not None and name != only:
+            continue
         if importlib.util.find_spec(module) is None:
             continue
         mod = importlib.import_module(module)
@@ -56,7 +62,11 @@ def main(argv=None) -> int:
         return serve(argv[1:])
     from .checking import UsageError
 
-    parser = build_parser()
+    _never_fail_to_print()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    # The first word names the command (no option comes before it); anything
+    # else (--help, --version, a typo) gets the whole parser and its message.
+    parser = build_parser(argv[0] if argv and argv[0] in COMMANDS else None)
     args = parser.parse_args(argv)
     if not getattr(args, "_run", None):
         parser.print_help()
@@ -80,6 +90,17 @@ def main(argv=None) -> int:
             raise
         sys.stderr.write(f"deckward: internal error: {type(e).__name__}: {e} (set DECKWARD_DEBUG=1 for details)\n")
         return 3
+
+
+def _never_fail_to_print() -> None:
+    """A file name that is not UTF-8 (or any odd character) must not turn a
+    report into an encoding error: a strict output stream escapes instead."""
+    for stream in (sys.stdout, sys.stderr):
+        if getattr(stream, "errors", None) == "strict" and hasattr(stream, "reconfigure"):
+            try:
+                stream.reconfigure(errors="backslashreplace")
+            except (ValueError, OSError):
+                pass
 
 
 if __name__ == "__main__":

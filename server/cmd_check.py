@@ -1,10 +1,11 @@
 """``deckward check PATH...``: report findings, optionally fix them."""
 from __future__ import annotations
 
+import os
 import sys
 
-from .checking import check_paths
-from .parallel_check import add_scale_arguments, scale_options
+from .checking import CheckResult, UsageError, check_paths, config_for, root_for
+from .scale_options import add_scale_arguments, scale_options
 from .report_options import add_report_arguments, check_format, report
 
 HELP = "check deck files or folders and report findings"
@@ -18,13 +19,18 @@ def add_arguments(p) -> None:
     fixing.add_argument("--diff", action="store_true", help="print a unified diff of the fixes; write nothing")
     p.add_argument("--probe", action="store_true",
                    help="also run the PySCF probes (slow: minutes, not milliseconds)")
+    p.add_argument("--stdin-name", metavar="PATH", default="stdin.deck",
+                   help="with the path `-`: the deck read from standard input is checked as if it were this "
+                        "file (its `use` lines are relative to it; default: stdin.deck here)")
     add_scale_arguments(p)
 
 
 def run(args) -> int:
     check_format(args)
     extra_output = ""
-    if args.fix or args.fix_risky or args.diff:
+    if "-" in args.paths:
+        result = _check_standard_input(args)
+    elif args.fix or args.fix_risky or args.diff:
         from .fixing import run_fixes  # the fix machinery (see docs/architecture.md)
 
         result, extra_output = run_fixes(args)
@@ -33,3 +39,32 @@ def run(args) -> int:
     if extra_output:  # the diff goes to standard output even when the report goes to --output
         sys.stdout.write(extra_output)
     return report(args, result)
+
+
+def _check_standard_input(args):
+    """``deckward check -``: one deck from standard input (an editor or a
+    pipe), checked as the file ``--stdin-name`` would be, never written."""
+    if args.paths != ["-"]:
+        raise UsageError("`-` (standard input) cannot be combined with other paths")
+    if args.fix or args.fix_risky or args.diff:
+        raise UsageError("--fix, --fix-risky and --diff need files: standard input cannot be written back")
+    try:
+        text = sys.stdin.buffer.read().decode("utf-8")
+    except UnicodeDecodeError as e:
+        raise UsageError(f"standard input: not valid UTF-8 (byte {e.start})")
+    from deckward.grammar.resolve import Loader, resolve
+    from deckward.rules.engine import check_workspace, dedupe
+
+    path = os.path.normpath(args.stdin_name)
+    loader = Loader({os.path.abspath(path): text})
+    folder = os.path.dirname(os.path.abspath(path))
+    config = config_for([folder], args.config)
+    root = root_for(path, config, folder)
+    ws = resolve(path, loader, root)
+    extra = []
+    if args.probe:
+        from deckward.rules.probes import run_probes
+
+        extra = run_probes(ws, config)
+    findings = list(config.findings) + check_workspace(ws, config, extra=extra, probed=args.probe)
+    return CheckResult([path], dedupe(findings), config)

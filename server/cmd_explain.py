@@ -1,13 +1,13 @@
-"""``deckward explain RULE-ID``: why a rule exists, with references and examples."""
+"""``deckward explain RULE-ID...``: why rules exist, with references and examples."""
 import sys
 
 from .checking import UsageError
 
-HELP = "explain one rule: rationale, references, examples, fix"
+HELP = "explain rules: rationale, references, examples, fix"
 
 
 def add_arguments(p) -> None:
-    p.add_argument("rule", metavar="RULE-ID")
+    p.add_argument("rules", nargs="+", metavar="RULE-ID", help="one or more rule ids (`deckward rules` lists them)")
 
 
 def run(args) -> int:
@@ -17,9 +17,15 @@ def run(args) -> int:
     from .rule_docs import explain
 
     rules = all_rules()
-    rule = rules.get(args.rule.strip().lower())
-    if rule is None:
-        raise UsageError(f"no rule is named `{args.rule}`{did_you_mean(args.rule, list(rules))} "
-                         "(`deckward rules` lists them)")
-    sys.stdout.write(explain(rule.info))
+    unknown = [name for name in args.rules if name.strip().lower() not in rules]
+    if len(unknown) == 1:
+        name = unknown[0]
+        raise UsageError(f"no rule is named `{name}`{did_you_mean(name, list(rules))} (`deckward rules` lists them)")
+    if unknown:
+        named = []
+        for name in unknown:
+            hint = did_you_mean(name, list(rules)).lstrip("; ")
+            named.append(f"`{name}`" + (f" ({hint})" if hint else ""))
+        raise UsageError(f"no rules are named {', '.join(named)} (`deckward rules` lists them)")
+    sys.stdout.write("\n".join(explain(rules[name.strip().lower()].info) for name in args.rules))
     return 0

@@ -2,15 +2,19 @@
 
 Formatting never changes what a deck means (``deckward.grammar.formatter``);
 a file with syntax errors is left untouched and reported.  Exit status: 0 all
-files formatted (or, with ``--check``, already formatted); 1 some file would
-be reformatted (``--check``) or could not be formatted; 2 usage errors.
+files are in the canonical layout (``--check``) or were laid out; 1 some file
+is not in it (``--check``) or could not be laid out; 2 usage errors.
 """
 from __future__ import annotations
 
+import os
 import sys
 
 from deckward.grammar.build import build_deck
+from deckward.grammar.wording import counted
 from deckward.grammar.formatter import format_text
+
+from deckward.grammar.resolve import inside_root
 
 from .atomic_write import WriteRefused, read_snapshot, write_atomically
 from .checking import UsageError, config_for, discover
@@ -26,7 +30,9 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     config = config_for(args.paths, None)
-    files = discover(args.paths, config)
+    skipped: list[str] = []
+    files = discover(args.paths, config, skipped)
+    sys.stderr.write("".join(n + "\n" for n in skipped))
     changed = unchanged = failed = 0
     for path in files:
         try:
@@ -52,19 +58,28 @@ def run(args) -> int:
             continue
         changed += 1
         if args.check:
-            sys.stdout.write(f"would reformat {path}\n")
+            sys.stdout.write(f"{path}: not in the canonical layout\n")
             continue
         try:
+            if config.root and not inside_root(os.path.realpath(path), os.path.realpath(config.root)):
+                raise WriteRefused(f"it is a link to {os.path.realpath(path)}, outside the workspace {config.root}")
             write_atomically(snapshot, formatted.encode("utf-8"))
         except WriteRefused as e:
             sys.stderr.write(f"{path}: not written: {e}\n")
             failed += 1
             changed -= 1
             continue
-        sys.stdout.write(f"reformatted {path}\n")
-    verb = "would be reformatted" if args.check else "reformatted"
-    sys.stdout.write(f"{changed} file{'s' * (changed != 1)} {verb}, {unchanged} unchanged"
-                     + (f", {failed} not formatted" if failed else "") + "\n")
+        sys.stdout.write(f"{path}: laid out anew\n")
+    sys.stdout.write(_summary(changed, unchanged, failed, args.check) + "\n")
     if failed or (args.check and changed):
         return 1
     return 0
+
+
+def _summary(changed: int, unchanged: int, failed: int, check: bool) -> str:
+    """"2 files to lay out, 5 already canonical" (--check) or "2 files laid out anew, ..."."""
+    parts = [f"{counted(changed, 'file')} {'to lay out' if check else 'laid out anew'}",
+             f"{unchanged} already canonical"]
+    if failed:
+        parts.append(f"{failed} left as they were (see above)")
+    return ", ".join(parts)

@@ -25,7 +25,7 @@ def add_arguments(p) -> None:
 def run(args) -> int:
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.engine import check_workspace, dedupe
-    from deckward.rules.probes import PROBE_RULES, run_probes
+    from deckward.rules.probes import PROBE_RULES, run_probes, unprobed_reason
     from deckward.rules.runner.cache import RunCache
 
     check_format(args)
@@ -33,9 +33,9 @@ def run(args) -> int:
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}
     loader = Loader()
-    files, findings = [], list(config.findings)
+    files, findings, notes = [], list(config.findings), []
     for given in args.paths:
-        for path in discover([given], config):
+        for path in discover([given], config, notes):
             files.append(path)
             try:
                 ws = resolve(path, loader, root_for(path, config, given))
@@ -46,6 +46,12 @@ def run(args) -> int:
             if errors:
                 sys.stderr.write(f"deckward: {path} has errors and is not probed (see `deckward check`)\n")
                 continue
+            unprobed = unprobed_reason(ws)
+            if unprobed is not None:
+                notes.append(f"deckward: {path} was not probed: {unprobed}")
+                continue
             extra = run_probes(ws, config, cache)
             findings.extend(check_workspace(ws, config, select=ids, extra=extra, probed=True))
-    return report(args, CheckResult(files, dedupe(findings), config))
+    if notes and getattr(args, "format", "text") != "text":
+        sys.stderr.write("".join(n + "\n" for n in notes))
+    return report(args, CheckResult(files, dedupe(findings), config, notes=notes))

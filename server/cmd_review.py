@@ -13,7 +13,7 @@ import os
 import sys
 
 from .checking import UsageError, check_paths
-from .parallel_check import add_scale_arguments, scale_options
+from .scale_options import add_scale_arguments, scale_options
 
 HELP = "write a review report (HTML or Markdown) on a batch of decks"
 

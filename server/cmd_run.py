@@ -24,6 +24,8 @@ def add_arguments(p) -> None:
     p.add_argument("--no-cache", action="store_true", help="recompute every state and store nothing")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress display on standard error")
     p.add_argument("--config", metavar="FILE", help="configuration file (default: deckward.yaml at or above the deck)")
+    p.add_argument("--force", action="store_true",
+                   help="run states above run.max_basis_functions or the memory estimate anyway")
 
 
 def _positive(name: str, value):
@@ -32,12 +34,23 @@ def _positive(name: str, value):
     return value
 
 
+def _bounded_threads(threads, name: str) -> None:
+    """OpenMP crashes (segfaults) when asked for tens of thousands of
+    threads; more than a few per core only slows a calculation."""
+    from deckward.rules.runner.limits import max_threads
+
+    if threads is not None and threads > max_threads():
+        raise UsageError(f"{name} {threads:g} is more than this machine can use ({os.cpu_count() or 1} cores); "
+                         f"use at most {max_threads()}")
+
+
 def options_from(args, config):
     from deckward.rules.runner.parallel import RunOptions
 
     run_cfg = config.run
     jobs = _positive("--jobs", args.jobs) or int(run_cfg.get("jobs", 1))
     threads = _positive("--threads", args.threads) or (int(run_cfg["threads"]) if "threads" in run_cfg else None)
+    _bounded_threads(threads, "--threads" if args.threads else "run.threads")
     memory = _positive("--max-memory", args.max_memory) or run_cfg.get("max_memory_mb")
     limit = _positive("--time-limit", args.time_limit) or run_cfg.get("time_limit_s")
     return RunOptions(jobs=int(jobs), threads=threads, max_memory_mb=memory, time_limit_s=limit)
@@ -68,8 +81,15 @@ def run(args) -> int:
         return 2
     cache_dir = os.path.join(args.cache_dir, "runs") if args.cache_dir else None
     cache = RunCache(cache_dir, enabled=not args.no_cache)
+    from deckward.rules.runner.limits import check_before_running
+
+    problem = check_before_running(ws, cache, config, options, all_states=args.all, force=args.force)
+    if problem is not None:
+        sys.stderr.write(problem + "\n")
+        return 2
     report = run_workspace(ws, cache, options, all_states=args.all, show_progress=not args.quiet)
     sys.stdout.write(format_report(report))
+    sys.stderr.write("".join(f"deckward: {n}\n" for n in cache.notes))
     if args.json:
         try:
             with open(args.json, "w", encoding="utf-8") as f:

@@ -14,6 +14,14 @@ Entries are single JSON files written to a temporary name and renamed into
 place, so concurrent writers (parallel workers, two CI jobs sharing a cache)
 never leave half an entry: a reader sees the old entry, the new one or none.
 A damaged or unreadable entry is a miss, never an error.
+
+Entries are checked before they are served: the layout and every type
+(``entry_problem``: spans inside their file's text, known severities and
+rules' shapes, bounded nesting), the key they were stored under, and a
+sha256 checksum over their contents, so an edited entry (a severity
+changed, a finding dropped, a span made negative) is a miss too.  Every
+file is recorded with its resolved target, so re-pointing a symlink at
+another file (or out of the workspace) changes the key or misses.
 """
 from __future__ import annotations
 
@@ -21,13 +29,16 @@ import hashlib
 import json
 import os
 import re
-import tempfile
 from typing import Any, Iterable, Optional
 
 from deckward import __version__
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 
-FORMAT = 1  # bump when the entry layout changes
+from .scale_options import default_cache_dir  # noqa: F401  (re-exported)
+
+FORMAT = 2  # bump when the entry layout changes
+MAX_ENTRY_BYTES = 16 * 1024 * 1024  # an entry larger than this is not read
+MAX_EVIDENCE_DEPTH = 8  # nesting of an evidence value
 
 
 # -- (de)serialisation of findings -------------------------------------------------
@@ -80,22 +91,123 @@ def finding_from_dict(d: dict) -> Finding:
     )
 
 
+# -- validation of entries read back ------------------------------------------------
+
+class BadEntry(ValueError):
+    """An entry that must not be served (its reason is the message)."""
+
+
+def _is_int(v: Any) -> bool:
+    return isinstance(v, int) and not isinstance(v, bool)
+
+
+def _check_span(v: Any, where: str) -> None:
+    if not (isinstance(v, list) and len(v) == 7 and isinstance(v[0], str) and all(_is_int(x) for x in v[1:])):
+        raise BadEntry(f"{where}: a span is [path, start, end, line, column, end_line, end_column]")
+    _, start, end, line, column, end_line, end_column = v
+    if not (0 <= start <= end and 1 <= line <= end_line and column >= 1 and end_column >= 1):
+        raise BadEntry(f"{where}: span {v[1:]} is not a range of a text")
+    if line == end_line and end_column < column:
+        raise BadEntry(f"{where}: span {v[1:]} ends before it starts")
+
+
+def _check_plain(v: Any, depth: int, where: str) -> None:
+    if depth > MAX_EVIDENCE_DEPTH:
+        raise BadEntry(f"{where}: evidence nested too deeply")
+    if isinstance(v, list):
+        for x in v:
+            _check_plain(x, depth + 1, where)
+    elif v is not None and not isinstance(v, (str, int, float, bool)):
+        raise BadEntry(f"{where}: evidence values are numbers, strings or lists")
+
+
+_FINDING_KEYS = {"rule", "severity", "message", "span", "related", "fixes", "evidence", "suppressed"}
+_SEVERITIES = {s.value for s in Severity}
+_APPLICABILITIES = {a.value for a in Applicability}
+
+
+def _check_finding(d: Any, where: str) -> None:
+    if not isinstance(d, dict) or not {"rule", "severity", "message", "span"} <= set(d) <= _FINDING_KEYS:
+        raise BadEntry(f"{where}: not a finding")
+    if not (isinstance(d["rule"], str) and isinstance(d["message"], str)):
+        raise BadEntry(f"{where}: rule and message are strings")
+    if d["severity"] not in _SEVERITIES:
+        raise BadEntry(f"{where}: unknown severity")
+    _check_span(d["span"], where)
+    related = d.get("related", [])
+    if not isinstance(related, list):
+        raise BadEntry(f"{where}: related is a list")
+    for r in related:
+        if not (isinstance(r, list) and len(r) == 2 and isinstance(r[1], str)):
+            raise BadEntry(f"{where}: a related place is [span, message]")
+        _check_span(r[0], where)
+    fixes = d.get("fixes", [])
+    if not isinstance(fixes, list):
+        raise BadEntry(f"{where}: fixes is a list")
+    for x in fixes:
+        if not (isinstance(x, dict) and set(x) == {"title", "applicability", "edits"} and isinstance(x["title"], str)
+                and x["applicability"] in _APPLICABILITIES and isinstance(x["edits"], list)):
+            raise BadEntry(f"{where}: not a fix")
+        for e in x["edits"]:
+            if not (isinstance(e, list) and len(e) == 2 and isinstance(e[1], str)):
+                raise BadEntry(f"{where}: an edit is [span, text]")
+            _check_span(e[0], where)
+    evidence = d.get("evidence", [])
+    if not isinstance(evidence, list):
+        raise BadEntry(f"{where}: evidence is a list")
+    for item in evidence:
+        if not (isinstance(item, list) and len(item) == 2 and isinstance(item[0], str)):
+            raise BadEntry(f"{where}: evidence is [name, value]")
+        _check_plain(item[1], 1, where)
+    if d.get("suppressed") is not None and not isinstance(d["suppressed"], str):
+        raise BadEntry(f"{where}: suppressed is a reason or null")
+
+
+def entry_checksum(key: str, deps: Any, findings: Any) -> str:
+    """sha256 of an entry's key, dependencies and findings, serialised the
+    one way ``put`` writes them."""
+    body = json.dumps([key, deps, findings], ensure_ascii=False, separators=(",", ":"), sort_keys=True)
+    return hashlib.sha256(body.encode("utf-8", "surrogatepass")).hexdigest()
+
+
+def entry_problem(entry: Any, key: str) -> Optional[str]:
+    """Why a decoded entry must not be served (None: it is sound).  Checks
+    the layout and every type, that each finding points into one of the
+    entry's own files, the key, and the checksum."""
+    try:
+        if not (isinstance(entry, dict) and set(entry) == {"format", "key", "deps", "findings", "checksum"}):
+            raise BadEntry("not an entry of this format")
+        if entry["format"] != FORMAT or entry["key"] != key:
+            raise BadEntry("stored under another key or format")
+        deps, findings = entry["deps"], entry["findings"]
+        if not isinstance(deps, list) or not isinstance(findings, list):
+            raise BadEntry("deps and findings are lists")
+        paths = set()
+        for dep in deps:
+            if not (isinstance(dep, list) and len(dep) == 3 and isinstance(dep[0], str) and isinstance(dep[1], str)
+                    and (dep[2] is None or (isinstance(dep[2], str) and len(dep[2]) == 64))):
+                raise BadEntry("a dependency is [path, resolved path, sha256 or null]")
+            paths.add(dep[0])
+        for i, d in enumerate(findings):
+            _check_finding(d, f"finding {i}")
+            if d["span"][0] not in paths:
+                raise BadEntry(f"finding {i} points into a file the entry does not list")
+        if entry["checksum"] != entry_checksum(key, deps, findings):
+            raise BadEntry("the checksum does not match: the entry was changed")
+    except BadEntry as e:
+        return str(e)
+    return None
+
+
 # -- keys ----------------------------------------------------------------------------
-
-def default_cache_dir() -> str:
-    """``$DECKWARD_CACHE_DIR/findings``, else ``~/.cache/deckward/findings``."""
-    base = os.environ.get("DECKWARD_CACHE_DIR")
-    if base:
-        return os.path.join(base, "findings")
-    return os.path.join(os.path.expanduser("~"), ".cache", "deckward", "findings")
-
 
 def file_digest(path: str) -> Optional[str]:
     """sha256 of a file's bytes; None when it does not exist or cannot be
     read (the deck's findings then say so, and the entry remembers it)."""
+    from deckward.grammar.safe_open import read_regular  # never blocks on a FIFO; NUL paths are OSError
+
     try:
-        with open(path, "rb") as f:
-            return hashlib.sha256(f.read()).hexdigest()
+        return hashlib.sha256(read_regular(path)).hexdigest()
     except OSError:
         return None
 
@@ -146,7 +258,7 @@ def config_fingerprint(config) -> str:
 
 def entry_key(path: str, root_dir: str, root_digest: str, config_print: str, probe: bool) -> str:
     text = json.dumps([FORMAT, code_fingerprint(), config_print, bool(probe), path,
-                       os.path.abspath(path), os.path.realpath(root_dir), root_digest])
+                       os.path.abspath(path), os.path.realpath(path), os.path.realpath(root_dir), root_digest])
     return hashlib.sha256(text.encode()).hexdigest()
 
 
@@ -156,7 +268,8 @@ _HEX = re.compile(r"[0-9a-f]+")
 
 class FindingsCache:
     """Entries in ``folder``: ``<key[:2]>/<key>.json`` holding
-    ``{"deps": [[path, sha256-or-null], ...], "findings": [...]}``."""
+    ``{"format", "key", "deps": [[path, resolved path, sha256-or-null], ...],
+    "findings": [...], "checksum"}``."""
 
     def __init__(self, folder: str) -> None:
         self.folder = folder
@@ -177,17 +290,22 @@ class FindingsCache:
         return os.path.join(self.folder, key[:2], key + ".json")
 
     def get(self, key: str) -> Optional[list[Finding]]:
-        """The cached findings, or None (no entry, a used file changed, or
-        the entry is damaged)."""
+        """The cached findings, or None (no entry, a used file changed or was
+        re-pointed, or the entry is damaged, edited or of another shape)."""
         try:
             with open(self._entry_path(key), "rb") as f:
-                entry = json.loads(f.read())
-            for dep, digest in entry["deps"]:
-                if self.digest(dep) != digest:
+                data = f.read(MAX_ENTRY_BYTES + 1)
+            if len(data) > MAX_ENTRY_BYTES:
+                raise ValueError("entry too large")
+            entry = json.loads(data)
+            if entry_problem(entry, key) is not None:
+                raise ValueError("entry rejected")
+            for dep, real, digest in entry["deps"]:
+                if os.path.realpath(dep) != real or self.digest(dep) != digest:
                     self.misses += 1
                     return None
             findings = [finding_from_dict(d) for d in entry["findings"]]
-        except (OSError, ValueError, KeyError, TypeError, IndexError):
+        except (OSError, ValueError, KeyError, TypeError, IndexError, RecursionError):
             self.misses += 1
             return None
         self.hits += 1
@@ -196,9 +314,18 @@ class FindingsCache:
     def put(self, key: str, deps: Iterable[str], findings: Iterable[Finding]) -> None:
         """Store an entry atomically; a cache that cannot be written is
         counted and otherwise ignored (checking must not fail because of it)."""
-        entry = {"deps": [[d, self.digest(d)] for d in deps],
-                 "findings": [finding_to_dict(f) for f in findings]}
-        data = json.dumps(entry, ensure_ascii=False, separators=(",", ":")).encode("utf-8")
+        import tempfile  # only a run that writes entries pays for it
+
+        try:
+            dep_rows = [[d, os.path.realpath(d), self.digest(d)] for d in deps]
+        except (OSError, ValueError):  # a `use` path no file can have (a NUL byte): not cacheable
+            return
+        rows = [finding_to_dict(f) for f in findings]
+        # Round-trip through JSON first, so that the checksum covers exactly what a reader decodes.
+        dep_rows, rows = json.loads(json.dumps([dep_rows, rows], ensure_ascii=False))
+        entry = {"format": FORMAT, "key": key, "deps": dep_rows, "findings": rows,
+                 "checksum": entry_checksum(key, dep_rows, rows)}
+        data = json.dumps(entry, ensure_ascii=False, separators=(",", ":")).encode("utf-8", "surrogatepass")
         target = self._entry_path(key)
         tmp = None
         try:

@@ -121,7 +121,8 @@ def _fix_one(path, root, config, loader: Loader, users, args, notes: list[str]):
     if outcome.text == original:
         loader.overlay.pop(key, None)
         return None, ""
-    refusal = _refusal(snapshot, path, original, outcome.text, bool(args.diff))
+    refusal = _outside(path, root) if not args.diff else None
+    refusal = refusal or _refusal(snapshot, path, original, outcome.text, bool(args.diff))
     if refusal is not None:
         notes.append(f"deckward: refused to write {path}: {refusal}")
         loader.overlay.pop(key, None)  # later decks see the file as it is on disk
@@ -155,6 +156,17 @@ def _users_of(decks, loader: Loader, config) -> dict[str, list[tuple[str, str]]]
         for used in ws.files[1:]:
             users.setdefault(os.path.abspath(used.path), []).append((path, root))
     return users
+
+
+def _outside(path: str, root: str):
+    """Why ``path`` must not be written because it resolves outside the
+    workspace (a symbolic link to a file elsewhere), else None."""
+    from deckward.grammar.resolve import inside_root
+
+    real = os.path.realpath(path)
+    if inside_root(real, os.path.realpath(root)):
+        return None
+    return f"it is a link to {real}, outside the workspace {os.path.realpath(root)}"
 
 
 def _refusal(snapshot: Snapshot, path: str, original: str, fixed: str, dry: bool):

@@ -107,7 +107,7 @@ def fix_object(fix) -> dict:
                              for e in sorted(edits, key=lambda e: e.span.start)],
         })
     return {"description": {"text": fix.title}, "artifactChanges": changes,
-            "properties": {"applicability": fix.applicability.value}}
+            "properties": {"safety": fix.applicability.value}}
 
 
 def result_object(f: Finding, index: int) -> dict:

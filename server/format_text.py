@@ -1,20 +1,19 @@
 """Plain text: one finding a line, ``path:line:column: severity: rule: message``."""
 from __future__ import annotations
 
+from deckward.grammar.wording import counted
+
 from .checking import CheckResult
 
 
 def summary_line(result: CheckResult) -> str:
     c = result.counts()
-    parts = [f"{c['error']} error{'s' * (c['error'] != 1)}",
-             f"{c['warning']} warning{'s' * (c['warning'] != 1)}",
-             f"{c['info']} info"]
-    n = len(result.files)
-    line = f"{', '.join(parts)} in {n} file{'s' * (n != 1)}"
+    parts = [counted(c["error"], "error"), counted(c["warning"], "warning"), f"{c['info']} info"]
+    line = f"{', '.join(parts)} in {counted(len(result.files), 'file')}"
     if result.suppressed:
         line += f" ({len(result.suppressed)} suppressed)"
     if result.fixes_applied:
-        line += f"; {result.fixes_applied} fix{'es' * (result.fixes_applied != 1)} applied"
+        line += f"; {counted(result.fixes_applied, 'fix', 'fixes')} applied"
     return line
 
 

@@ -32,8 +32,8 @@ from deckward.rules.config import Config
 from deckward.rules.engine import check_workspace
 
 from .findings_cache import FindingsCache, config_fingerprint, entry_key
+from .scale_options import IN_PROCESS_BELOW, default_jobs  # noqa: F401  (re-exported)
 
-IN_PROCESS_BELOW = 50  # decks; fewer than this are checked without workers
 MAX_CHUNK = 64
 
 
@@ -171,13 +171,6 @@ def chunks(tasks: list, jobs: int) -> list[list]:
     return [tasks[i : i + size] for i in range(0, len(tasks), size)]
 
 
-def default_jobs() -> int:
-    try:
-        return max(1, len(os.sched_getaffinity(0)))
-    except (AttributeError, OSError):
-        return max(1, os.cpu_count() or 1)
-
-
 def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: int = 1,
                 cache_dir: Optional[str] = None, loader: Optional[Loader] = None) -> tuple[list[Finding], CheckStats]:
     """Findings of every task, concatenated in task order (raises
@@ -231,44 +224,3 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
             raise DeckUnreadable(task.path, str(value))
         findings.extend(value)  # type: ignore[arg-type]
     return findings, stats
-
-
-# -- command-line options shared by ``check`` and ``review`` ------------------------------
-
-def add_scale_arguments(p) -> None:
-    """``--jobs``, ``--cache-dir`` and ``--no-cache``."""
-    group = p.add_argument_group("scale")
-    group.add_argument("--jobs", "-j", type=_jobs_value, default=0, metavar="N",
-                       help="worker processes (default: one per core; 1: no workers)")
-    group.add_argument("--cache-dir", metavar="DIR",
-                       help="findings cache folder (default: $DECKWARD_CACHE_DIR/findings or ~/.cache/deckward/findings)")
-    group.add_argument("--no-cache", action="store_true",
-                       help="clear the findings cache and check everything afresh (nothing is read or written)")
-
-
-def _jobs_value(text: str) -> int:
-    import argparse
-
-    try:
-        n = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"--jobs takes a whole number, not {text!r}")
-    if n < 0:
-        raise argparse.ArgumentTypeError("--jobs must be 0 (one per core) or more")
-    return n
-
-
-def scale_options(args) -> dict:
-    """Keyword arguments for ``check_paths`` from the parsed options."""
-    from .findings_cache import default_cache_dir
-
-    jobs = getattr(args, "jobs", 1)
-    folder = getattr(args, "cache_dir", None) or default_cache_dir()
-    if getattr(args, "no_cache", False):
-        from .findings_cache import FindingsCache
-
-        FindingsCache(folder).clear()
-        cache_dir = None
-    else:
-        cache_dir = folder
-    return {"jobs": jobs if jobs else default_jobs(), "cache_dir": cache_dir}

@@ -30,9 +30,10 @@ def rule_info(rule_id: str) -> RuleInfo:
 
 
 def read_text(path: str) -> Optional[str]:
+    from deckward.grammar.safe_open import read_regular
+
     try:
-        with open(path, "rb") as f:
-            return f.read().decode("utf-8", errors="replace")
+        return read_regular(path).decode("utf-8", errors="replace")
     except OSError:
         return None
 

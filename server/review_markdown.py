@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from deckward import __version__
 from deckward.grammar.findings import Severity
+from deckward.grammar.wording import counted
 
 from .format_markdown import code, md_text
 from .review_batch import SEVERITIES, Review, batch_sentence, context_lines, evidence_rows, fix_diff, rule_info
@@ -27,8 +28,9 @@ def render_review_markdown(review: Review) -> str:
     total = len(review.decks)
     t = review.totals()
     out = [f"# {md_text(review.title)}", "",
-           f"{total} deck{'s' * (total != 1)} checked by deckward {__version__}: "
-           f"{t[Severity.ERROR]} errors, {t[Severity.WARNING]} warnings, {t[Severity.INFO]} info; "
+           f"{counted(total, 'deck')} checked by deckward {__version__}: "
+           f"{counted(t[Severity.ERROR], 'error')}, {counted(t[Severity.WARNING], 'warning')}, "
+           f"{t[Severity.INFO]} info; "
            f"{review.clean_decks} without findings.", "",
            "| Deck | Errors | Warnings | Info | Suppressed |", "| --- | ---: | ---: | ---: | ---: |"]
     for d in review.decks:

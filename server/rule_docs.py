@@ -79,14 +79,15 @@ def listing() -> str:
         lines.append(CATEGORY_TITLES.get(cat, cat.title()))
         for info in infos:
             fix = "" if info.fix is None else f"  [fix: {info.fix.value}]"
-            lines.append(f"  {info.id:<{width}}  {info.severity.value:<7}  {info.title}{fix}")
+            note = f" ({info.severity_note})" if info.severity_note else ""
+            lines.append(f"  {info.id:<{width}}  {info.severity.value:<7}  {info.title}{fix}{note}")
         lines.append("")
     return "\n".join(lines)
 
 
 def explain(info: RuleInfo) -> str:
     """The rationale, references and examples of one rule (plain text)."""
-    out = [f"{info.id} ({info.severity.value}): {info.title}", "", info.why, ""]
+    out = [f"{info.id} ({info.severity_words}): {info.title}", "", info.why, ""]
     if info.threshold_note:
         out += [f"Thresholds: {info.threshold_note}", ""]
     if info.references:
@@ -117,11 +118,11 @@ def markdown() -> str:
     for cat, infos in _categories():
         out += [f"## {CATEGORY_TITLES.get(cat, cat.title())}", "", "| id | severity | title | fix |", "|---|---|---|---|"]
         for info in infos:
-            out.append(f"| [{info.id}](#{info.id}) | {info.severity.value} | {info.title} | {fix_words(info)} |")
+            out.append(f"| [{info.id}](#{info.id}) | {info.severity_words} | {info.title} | {fix_words(info)} |")
         out.append("")
     for cat, infos in _categories():
         for info in infos:
-            out += [f"### {info.id}", "", f"**Finding** ({info.severity.value}): {info.title}.", "",
+            out += [f"### {info.id}", "", f"**Finding** ({info.severity_words}): {info.title}.", "",
                     "**Why it matters.** " + info.why, ""]
             if info.threshold_note:
                 out += ["**Thresholds.** " + info.threshold_note, ""]

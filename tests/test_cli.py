@@ -58,6 +58,7 @@ def test_json_output(tmp_path):
     assert [x["title"] for x in f["fixes"]] == ["Use an unrestricted reference",
                                                 "Use a restricted open-shell reference"]
     assert f["fixes"][0]["edits"][0]["new_text"] == "unrestricted"
+    assert [x["safety"] for x in f["fixes"]] == ["safe", "safe"]
 
 
 def test_fail_on_levels(tmp_path):
@@ -103,3 +104,38 @@ def test_version_and_module_entry_point():
     assert run("--version").stdout.strip().startswith("deckward ")
     proc = subprocess.run(["deckward", "--version"], capture_output=True, text=True)
     assert proc.returncode == 0 and proc.stdout.startswith("deckward ")
+
+
+def test_check_reads_a_deck_from_standard_input(tmp_path):
+    text = ("geometry h { H 0 0 0 }\n"
+            "level l { method = hf basis = cc-pvdz reference = restricted }\n"
+            "state s { geometry = h level = l charge = 0 multiplicity = 2 }\n")
+    proc = subprocess.run([sys.executable, "-m", "deckward", "check", "-", "--stdin-name", "probe/h.deck"],
+                          input=text, capture_output=True, text=True, cwd=tmp_path)
+    assert (proc.returncode, proc.stdout.splitlines()) == (1, [
+        "probe/h.deck:2:51: error: restricted-open-shell: state `s` has multiplicity 2 (open shell) but level "
+        "`l` sets reference = restricted",
+        "1 error, 0 warnings, 0 info in 1 file"])
+    assert not (tmp_path / "probe").exists()  # nothing is written
+    refused = subprocess.run([sys.executable, "-m", "deckward", "check", "-", "--fix"],
+                             input=text, capture_output=True, text=True, cwd=tmp_path)
+    assert (refused.returncode, refused.stderr) == (
+        2, "deckward: error: --fix, --fix-risky and --diff need files: standard input cannot be written back\n")
+
+
+def test_explain_takes_several_rules_and_names_every_unknown_one():
+    both = run("explain", "koopmans-ip", "restricted-open-shell")
+    assert both.returncode == 0
+    heads = [ln for ln in both.stdout.splitlines() if ln.startswith(("koopmans-ip (", "restricted-open-shell ("))]
+    assert heads == ["koopmans-ip (info): Ionization energy from the Hartree-Fock HOMO energy (Koopmans' theorem)",
+                     "restricted-open-shell (error): Restricted reference for an open-shell state"]
+    wrong = run("explain", "koopmans-ipp", "restricted-open-shell", "nothing-like-it")
+    assert (wrong.returncode, wrong.stdout) == (2, "")
+    assert wrong.stderr == ("deckward: error: no rules are named `koopmans-ipp` (did you mean `koopmans-ip`?), "
+                            "`nothing-like-it` (`deckward rules` lists them)\n")
+
+
+def test_rules_listing_says_when_a_rule_escalates():
+    line = [ln for ln in run("rules").stdout.splitlines() if ln.strip().startswith("anion-lacks-diffuse ")][0]
+    assert line.split()[1] == "warning"
+    assert line.endswith("(error when an electron affinity depends on the anion)")

@@ -5,6 +5,8 @@ import os
 
 import pytest
 
+pytestmark = pytest.mark.pyscf  # computes with PySCF
+
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 EXAMPLES = os.path.join(ROOT, "examples")
 

@@ -2,7 +2,8 @@
 never raises, never makes a parsing deck unparsable, no rule crashes on the
 way, and fixing the result again changes nothing."""
 import os
-import tempfile
+
+import pytest
 
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -12,8 +13,16 @@ from deckward.grammar.resolve import Loader, resolve
 from deckward.rules.engine import check_workspace
 from deckward.rules.fixes import fix_text
 
-FOLDER = tempfile.mkdtemp(prefix="deckward-fix-hypothesis-")
-PATH = os.path.join(FOLDER, "generated.deck")
+FOLDER = ""  # set per module by the fixture below, inside pytest's own temporary folder
+PATH = ""
+
+
+@pytest.fixture(autouse=True, scope="module")
+def _module_folder(tmp_path_factory):
+    global FOLDER, PATH
+    FOLDER = str(tmp_path_factory.mktemp("fix-hypothesis"))
+    PATH = os.path.join(FOLDER, "generated.deck")
+
 
 # Words a screening group would type, right and wrong (wrong ones draw findings with fixes).
 ELEMENTS = ["H", "C", "N", "O", "F", "S", "Cl", "cl", "Na", "Xx", "Q", "Oo"]
@@ -168,3 +177,18 @@ def test_fixing_generated_decks(text, include_risky):
 @given(mutated(decks()), st.booleans())
 def test_fixing_mutated_decks(text, include_risky):
     check_fix_properties(text, include_risky)
+
+
+# Odd values in every slot (NUL bytes and lone surrogates in each string
+# position, non-finite and 400-digit numbers, deep nesting): fixing never
+# crashes, never makes the text parse worse, and settles.
+from odd_inputs import DEEP, NUMBER_SLOTS, ODD_NUMBERS, ODD_STRINGS, STRING_SLOTS, fill  # noqa: E402
+
+
+@SETTINGS
+@given(st.lists(st.sampled_from(ODD_STRINGS + ["cc-pvdz", "hf"]), min_size=STRING_SLOTS, max_size=STRING_SLOTS),
+       st.lists(st.sampled_from(ODD_NUMBERS + ["0", "1", "1.1"]), min_size=NUMBER_SLOTS, max_size=NUMBER_SLOTS),
+       st.sampled_from(DEEP[:2] + ["2"]), st.booleans())
+def test_fixing_decks_with_odd_values(strings, numbers, deep, include_risky):
+    s, n = iter(strings), iter(numbers)
+    check_fix_properties(fill(lambda: next(s), lambda: next(n), deep), include_risky)

@@ -139,12 +139,15 @@ def test_command_line_check_and_write(tmp_path):
     run = lambda *a: subprocess.run([sys.executable, "-m", "deckward", "format", *a],  # noqa: E731
                                     capture_output=True, text=True)
     check = run("--check", str(good), str(messy))
-    assert (check.returncode, check.stdout) == (1, f"would reformat {messy}\n1 file would be reformatted, 1 unchanged\n")
+    assert (check.returncode, check.stdout) == (
+        1, f"{messy}: not in the canonical layout\n1 file to lay out, 1 already canonical\n")
     assert messy.read_text(encoding="utf-8") == MESSY
     write = run(str(messy))
     assert write.returncode == 0 and messy.read_text(encoding="utf-8") == EXPECTED
+    assert write.stdout == f"{messy}: laid out anew\n1 file laid out anew, 0 already canonical\n"
     refused = run(str(broken))
     assert refused.returncode == 1
+    assert refused.stdout == "0 files laid out anew, 0 already canonical, 1 left as they were (see above)\n"
     assert refused.stderr.startswith(f"{broken}:1:")
     assert broken.read_text(encoding="utf-8") == "level l { method = }\n"
 

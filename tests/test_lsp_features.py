@@ -192,8 +192,8 @@ async def test_completion_in_context(client: LanguageClient):
     assert await complete_at(client, uri, 14, 36) == ["homo", "lumo", "homo-1", "lumo+1"]
     states = await complete_at(client, uri, 14, 18)
     assert states == ["s1", "s2"]
-    # after `level = ` in state s1; l2 does not parse yet, so it is not offered
-    assert await complete_at(client, uri, 5, 34) == ["l1"]
+    # after `level = ` in state s1; l2 is unfinished (settings without values) but defined
+    assert await complete_at(client, uri, 5, 34) == ["l1", "l2"]
     top = await complete_at(client, uri, 4, 0)  # at the start of a line after a block
     assert top == ["study", "geometry", "basis_set", "level", "state", "derive", "use"]
 

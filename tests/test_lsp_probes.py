@@ -12,7 +12,7 @@ from pytest_lsp import LanguageClient
 
 from lsp_support import (client_fixture, open_document, uri_of, wait_for_diagnostics)
 
-pytestmark = pytest.mark.asyncio(loop_scope="module")
+pytestmark = [pytest.mark.asyncio(loop_scope="module"), pytest.mark.pyscf]  # computes with PySCF
 
 # EA of the carbon atom at HF: negative with 6-31G*, positive with 6-31+G*
 # (NIST CCCBDB, check-values section 7: -0.527 / 0.453 eV with aug-cc-pVTZ),

@@ -11,7 +11,7 @@ import pytest
 from deck_batch import DECKS, write_batch
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
 from deckward.server import findings_cache
-from deckward.server.checking import UsageError, check_paths
+from deckward.server.checking import check_paths
 from deckward.server.cli import main
 from deckward.server.findings_cache import FindingsCache, finding_from_dict, finding_to_dict
 from deckward.server.parallel_check import IN_PROCESS_BELOW
@@ -122,12 +122,15 @@ def test_unwritable_cache_is_a_note_not_a_failure(tmp_path):
 
 
 def test_cli_cache_options(tmp_path, monkeypatch, capsys):
-    root = write_batch(str(tmp_path / "w"), {"cn.deck": DECKS["cn_restricted.deck"]})
+    root = write_batch(str(tmp_path / "w"), {"cn.deck": DECKS["cn_restricted.deck"],
+                                             "cn2.deck": DECKS["cn_restricted.deck"]})
     monkeypatch.setenv("DECKWARD_CACHE_DIR", str(tmp_path / "env"))
     main(["check", root, "--no-cache"])
     assert not (tmp_path / "env").exists()
+    main(["check", os.path.join(root, "cn.deck")])
+    assert not (tmp_path / "env").exists()  # one deck: the default cache is not worth opening
     main(["check", root])
-    assert list((tmp_path / "env" / "findings").rglob("*.json"))
+    assert len(list((tmp_path / "env" / "findings").rglob("*.json"))) == 2
     main(["check", root, "--cache-dir", str(tmp_path / "given"), "--jobs", "2"])
     assert list((tmp_path / "given").rglob("*.json"))
     capsys.readouterr()
@@ -138,15 +141,14 @@ def test_cli_cache_options(tmp_path, monkeypatch, capsys):
         assert message in capsys.readouterr().err
 
 
-def test_unreadable_deck_is_a_usage_error_whatever_jobs(big_batch):
+def test_unreadable_deck_is_skipped_alike_whatever_jobs(big_batch):
     os.symlink(os.path.join(big_batch, "gone"), os.path.join(big_batch, "g5", "dangling.deck"))
-    messages = []
-    for jobs in (1, 2):
-        with pytest.raises(UsageError) as e:
-            check_paths([big_batch], jobs=jobs, cache_dir=None if jobs == 1 else os.path.join(big_batch, ".c"))
-        messages.append(str(e.value))
-    assert messages[0] == messages[1]
-    assert messages[0].endswith("dangling.deck: cannot be read (No such file or directory)")
+    results = [check_paths([big_batch], jobs=jobs, cache_dir=None if jobs == 1 else os.path.join(big_batch, ".c"))
+               for jobs in (1, 2)]
+    assert results[0].files == results[1].files and results[0].findings == results[1].findings
+    skipped = [[n for n in r.notes if "dangling.deck" in n] for r in results]
+    assert skipped[0] == skipped[1] and len(skipped[0]) == 1
+    assert skipped[0][0].endswith("dangling.deck: it is not a regular file")
 
 
 def test_findings_round_trip_through_the_cache_format():
@@ -167,7 +169,7 @@ def _hammer(args):
     cache = FindingsCache(folder)
     span = Span("a.deck", 0, 1, 1, 1, 1, 2)
     for i in range(n):
-        cache.put(key, [], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
+        cache.put(key, ["a.deck"], [Finding("syntax-error", Severity.ERROR, f"writer {os.getpid()} round {i}", span)])
         got = cache.get(key)
         assert got is not None and len(got) == 1
     return cache.write_errors

@@ -2,7 +2,10 @@
 finding's span lies inside its file."""
 import os
 import random
-import tempfile
+
+import pytest
+
+import pytest
 
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -25,7 +28,13 @@ derive ea as electron_affinity = energy(neutral) - energy(anion) in ev  # allow:
 derive ea_eig = -orbital(neutral, lumo+1, beta) * 2 / (1 + 1) in kcal/mol
 '''
 
-FOLDER = tempfile.mkdtemp(prefix="deckward-fuzz-")
+FOLDER = ""  # set per module by the fixture below, inside pytest's own temporary folder
+
+
+@pytest.fixture(autouse=True, scope="module")
+def _module_folder(tmp_path_factory):
+    global FOLDER
+    FOLDER = str(tmp_path_factory.mktemp("fuzz"))
 
 
 def check_bytes(data: bytes, name="fuzz.deck"):
@@ -113,3 +122,52 @@ def test_five_megabyte_file():
     # the encoding finding, 50 syntax errors, and one saying the rest is not reported
     assert len(syntax) == 52
     assert syntax.count("more than 50 syntax errors: the rest of the file is not reported") == 1
+
+
+# -- odd values in every slot: NUL bytes and lone surrogates in every string
+# position, numbers that are not finite or have hundreds of digits in every
+# number position, deep nesting (shared with bench/fuzz_escapes.py)
+
+from odd_inputs import DEEP, DEEPER, NUMBER_SLOTS, ODD_NUMBERS, ODD_STRINGS, STRING_SLOTS, escapes, fill  # noqa: E402
+
+
+@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(st.sampled_from(ODD_STRINGS) | st.text(max_size=6), min_size=STRING_SLOTS, max_size=STRING_SLOTS),
+       st.lists(st.sampled_from(ODD_NUMBERS), min_size=NUMBER_SLOTS, max_size=NUMBER_SLOTS),
+       st.sampled_from(DEEP + ["2"]))
+def test_odd_values_in_every_slot(strings, numbers, deep):
+    s, n = iter(strings), iter(numbers)
+    assert escapes(fill(lambda: next(s), lambda: next(n), deep), FOLDER) == []
+
+
+@pytest.mark.parametrize("slot", range(STRING_SLOTS))
+@pytest.mark.parametrize("odd", ["a\x00b.deck", "\ud800", "x\udfffy"])
+def test_nul_and_lone_surrogates_in_each_string_position(slot, odd):
+    values = iter(odd if i == slot else "cc-pvdz" for i in range(STRING_SLOTS))
+    assert escapes(fill(lambda: next(values), lambda: "1", "2"), FOLDER) == []
+
+
+@pytest.mark.parametrize("slot", range(NUMBER_SLOTS))
+@pytest.mark.parametrize("odd", ["1e309", "-1e309", "9" * 400])
+def test_non_finite_numbers_in_each_number_position(slot, odd):
+    values = iter(odd if i == slot else "1" for i in range(NUMBER_SLOTS))
+    text = fill(lambda: "cc-pvdz", lambda: next(values), "2")
+    assert escapes(text, FOLDER) == []
+    findings = check_bytes(text.encode("utf-8"))
+    assert [f.rule for f in findings if f.span.line == _line_of_slot(text, slot)] != []
+
+
+def _line_of_slot(text: str, slot: int) -> int:
+    """The line of the n-th number slot, found by filling only it with a marker."""
+    from odd_inputs import TEMPLATE
+
+    marked = TEMPLATE.replace("{n%d}" % slot, "@@")
+    for i, line in enumerate(marked.split("\n"), 1):
+        if "@@" in line:
+            return i
+    raise AssertionError(slot)
+
+
+@pytest.mark.parametrize("deep", DEEPER)
+def test_deep_nesting_in_a_derive(deep):
+    assert escapes(fill(lambda: "cc-pvdz", lambda: "1", deep), FOLDER) == []

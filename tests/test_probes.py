@@ -10,6 +10,8 @@ from deckward.rules.config import Config
 from deckward.rules.probes import PROBE_RULES, run_probes
 from deckward.rules.runner.cache import RunCache
 
+pytestmark = pytest.mark.pyscf  # computes with PySCF
+
 EV = 27.211386245988  # CODATA 2018 E_h in eV (check-values section 1)
 
 

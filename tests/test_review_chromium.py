@@ -12,6 +12,8 @@ from PIL import Image
 from deck_batch import write_batch
 from deckward.server.cli import main
 
+pytestmark = pytest.mark.editor  # drives an installed program headless
+
 CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
 
 

@@ -165,8 +165,8 @@ def test_bohr_numbers_without_units_line_get_one_inserted():
     assert covered(f, text) == "cn"
     assert f.message == (
         "geometry `cn` with no units line (angstrom by default): no atom has a neighbour at bonding "
-        "distance (nearest at 1.54 of the sum of the covalent radii; bonds end near 1.25); read in bohr "
-        "the same numbers give ordinary bond lengths (0.81 of the sum): the coordinates look like bohr values"
+        "distance (nearest at 1.54 times the sum of the covalent radii; bonds end near 1.25); read in bohr "
+        "the same numbers give ordinary bond lengths (0.81 times the sum): the coordinates look like bohr values"
     )
     assert apply_edits(text, f.fixes[0].edits) == _deck("cn", MOLECULES["cn"], "bohr", 1 / BOHR)
 

@@ -136,10 +136,10 @@ def test_virtual_eigenvalue_message_and_position():
     )
     assert run(text, "virtual-eigenvalue-as-ea") == [
         (8, 14, "orbital(neutral, lumo+1, alpha)",
-         "the electron affinity `ea` is the negative alpha LUMO+1 energy of `neutral` at hf/aug-cc-pvdz: a "
-         "virtual orbital energy is not the energy of a bound extra electron; it has no relaxation and no "
-         "correlation (both make it too small) and it drifts with the basis set; compute E(neutral) - E(anion) "
-         "(the deck has no anion of `neutral` yet)"),
+         "the electron affinity `ea` is the negative alpha LUMO+1 energy of `neutral` at hf/aug-cc-pvdz: this "
+         "is Koopmans' estimate with the neutral's frozen orbitals: no relaxation and no correlation, which here "
+         "add up instead of cancelling (both make it too small), and it drifts with the basis set; compute "
+         "E(neutral) - E(anion) (the deck has no anion of `neutral` yet)"),
     ]
 
 
@@ -196,15 +196,33 @@ def test_koopmans_silent_for_dft_unknown_method_and_energy_difference():
 # --- dft-eigenvalue-as-ie-or-ea ----------------------------------------------------------
 
 
-def test_dft_lumo_as_ea_fires_with_virtual_rule_too():
+def test_dft_lumo_as_ea_is_one_finding_with_kohn_sham_reasons():
+    # One mistake, one finding: virtual-eigenvalue-as-ea speaks, with the Kohn-Sham argument
+    # (derivative discontinuity: Perdew & Levy, Phys. Rev. Lett. 51, 1884 (1983), from memory),
+    # not the Hartree-Fock one.
     text = _no2_with("level lv { method = pbe0 basis = aug-cc-pvdz }\n", "derive ea = -orbital(neutral, lumo) in ev\n")
-    assert run(text, "dft-eigenvalue-as-ie-or-ea") == [
+    assert run(text, "dft-eigenvalue-as-ie-or-ea") == []
+    assert run(text, "virtual-eigenvalue-as-ea") == [
         (9, 14, "orbital(neutral, lumo)",
-         "the electron affinity `ea` is the negative LUMO energy of `neutral` at pbe0/aug-cc-pvdz: Kohn-Sham "
-         "orbital energies of pbe0 do not approximate electron affinities; the energy difference of the two "
-         "states does far better"),
+         "the electron affinity `ea` is the negative LUMO energy of `neutral` at pbe0/aug-cc-pvdz: a Kohn-Sham "
+         "virtual energy of pbe0 is not an electron affinity: even the exact functional puts -e(LUMO) above the "
+         "EA by the derivative discontinuity, common functionals make it typically too large by an amount that "
+         "depends on the functional, and it drifts with the basis set; compute E(neutral) - E(anion) (the deck "
+         "has no anion of `neutral` yet)"),
     ]
-    assert [f[2] for f in run(text, "virtual-eigenvalue-as-ea")] == ["orbital(neutral, lumo)"]
+    assert "too small" not in run(text, "virtual-eigenvalue-as-ea")[0][3]
+
+
+def test_dft_anion_homo_as_ea_keeps_its_own_finding():
+    text = NO2 + "level lv { method = b3lyp basis = aug-cc-pvdz }\n" + (
+        "state neutral { geometry = no2 level = lv charge = 0 multiplicity = 2 }\n"
+        "state anion { geometry = no2 level = lv charge = -1 multiplicity = 1 }\n"
+        "derive ea = -orbital(anion, homo) in ev\n"
+    )
+    found = run(text, "dft-eigenvalue-as-ie-or-ea")
+    assert [f[2] for f in found] == ["orbital(anion, homo)"]
+    assert "self-interaction" in found[0][3]
+    assert run(text, "virtual-eigenvalue-as-ea") == []
 
 
 def test_dft_range_separated_ie_and_hf_silent():
@@ -439,6 +457,6 @@ def test_experiment_adiabatic_without_frequencies():
     assert run(text, "experiment-needs-adiabatic") == [
         (8, 97, "false",
          "the study compares adiabatic energies with experiment, but `anion` in `ea` has no frequencies = true: "
-         "measured values are 0-0 transitions that include the zero-point energy of each state, which needs a "
-         "frequency calculation"),
+         "adiabatic measured values are 0-0 transitions, which include the zero-point energy of each state, and "
+         "that needs a frequency calculation"),
     ]

@@ -9,6 +9,8 @@ import pytest
 
 from runner_helpers import run_text
 
+pytestmark = pytest.mark.pyscf  # computes with PySCF
+
 SLOW = os.environ.get("DECKWARD_SLOW_TESTS") == "1"
 
 

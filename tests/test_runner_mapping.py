@@ -9,6 +9,8 @@ from runner_helpers import workspace
 from deckward.rules.runner.mapping import MappingError, needed_states, plan_state
 from deckward.rules.runner.pyscf_build import build_correlated, build_mole, build_scf
 
+pytestmark = pytest.mark.pyscf  # computes with PySCF
+
 GEOM = "geometry oh {\n  O 0 0 0\n  H 0 0 0.97\n}\n"
 
 

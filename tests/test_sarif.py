@@ -2,6 +2,7 @@
 locations, fixes and suppressions where the spec puts them."""
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 
@@ -11,17 +12,17 @@ from jsonschema import Draft4Validator
 from deck_batch import write_batch
 from deckward.server.cli import main
 
-REPO = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-# The shared folder sits beside the checkout (CI copies it there).
-SCHEMA = os.path.join(REPO, "..", "shared", "schemas", "sarif-schema-2.1.0.json")
+# The published OASIS schema, vendored unmodified beside the tests (see its README).
+SCHEMA = os.path.join(os.path.dirname(os.path.abspath(__file__)), "data", "sarif", "sarif-schema-2.1.0.json")
+# sha256 of the OASIS file (tests/data/sarif/README.md): the copy must stay byte-identical.
+SCHEMA_SHA256 = "c3b4bb2d6093897483348925aaa73af03b3e3f4bd4ca38cef26dcb4212a2682e"
 
 
 def load_schema() -> dict:
-    if not os.path.isfile(SCHEMA):
-        pytest.fail(f"the SARIF 2.1.0 schema is missing: expected {os.path.normpath(SCHEMA)} "
-                    "(the shared/ folder must sit beside the repository checkout)")
-    with open(SCHEMA, encoding="utf-8") as f:
-        return json.load(f)
+    with open(SCHEMA, "rb") as f:
+        raw = f.read()
+    assert hashlib.sha256(raw).hexdigest() == SCHEMA_SHA256, "the vendored SARIF schema was modified"
+    return json.loads(raw)
 
 
 @pytest.fixture()
@@ -95,6 +96,7 @@ def test_fixes_are_replacements(sarif):
     result = results_by(sarif)[("restricted-open-shell", "batch/cn_restricted.deck")]
     first = result["fixes"][0]
     assert first["description"]["text"] == "Use an unrestricted reference"
+    assert first["properties"] == {"safety": "safe"}
     change = first["artifactChanges"][0]
     assert change["artifactLocation"]["uri"] == "batch/cn_restricted.deck"
     (rep,) = change["replacements"]

@@ -62,3 +62,9 @@ def test_unknown_unit_is_a_clear_error():
     with pytest.raises(ValueError, match="unknown energy unit 'kelvin'"):
         units.from_hartree(1.0, "kelvin")
     assert math.isfinite(units.to_hartree(1.0, "kj/mol"))
+
+
+def test_unit_symbols_are_written_as_a_reader_expects():
+    # SI symbols (BIPM, The International System of Units, 9th edition, 2019): eV, kJ/mol.
+    assert [units.unit_symbol(u) for u in ("ev", "EV", "kj/mol", "kcal/mol", "hartree")] == [
+        "eV", "eV", "kJ/mol", "kcal/mol", "hartree"]

@@ -31,6 +31,7 @@ from ._basis_targets import (
 INFO = RuleInfo(
     id="anion-lacks-diffuse",
     severity=Severity.WARNING,
+    severity_note="error when an electron affinity depends on the anion",
     category="basis",
     title="Anion or electron affinity without diffuse functions",
     why=(

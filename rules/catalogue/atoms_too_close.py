@@ -38,12 +38,18 @@ INFO = RuleInfo(
 )
 
 
+# A pile of atoms gets one finding, not one per atom; and a geometry gets at
+# most MAX_FINDINGS findings plus a summary: a pasted block of coordinates
+# must not bury everything else (common practice, no source).
+GROUP_LISTED = 3  # a group with more atoms than this is one finding
+MAX_FINDINGS = 20  # per geometry, before the summary
+
+
 def check(ctx: Context):
     for pf in ctx.workspace.files:
         for geometry in pf.deck.geometries:
-            unit = geometry.unit
-            pairs = geo.too_close_pairs(geometry)
-            if not pairs:
+            groups = geo.too_close_groups(geometry)
+            if not groups:
                 continue
             verdict = geo.units_verdict(geometry)
             hint = (
@@ -51,16 +57,57 @@ def check(ctx: Context):
                 if verdict is not None
                 else ""
             )
-            for p in pairs:
-                a, b = p.a, p.b
-                limit = geo.TOO_CLOSE_RATIO * p.radius_sum
-                if p.distance < 1e-6:
-                    where = f"sits at the same position as {a.label}"
-                else:
-                    where = f"is {geo.format_length(p.distance, unit)} from {a.label}"
+            reported = unreported = 0
+            for group in groups:
+                pairs = group.pairs
+                if len(pairs) > GROUP_LISTED:
+                    if reported < MAX_FINDINGS:
+                        reported += 1
+                        yield _pile(ctx, geometry, group, hint)
+                    else:
+                        unreported += len(pairs)
+                    continue
+                for p in pairs:
+                    if reported < MAX_FINDINGS:
+                        reported += 1
+                        yield _pair(ctx, geometry, p, hint)
+                    else:
+                        unreported += 1
+            if unreported:
                 yield ctx.finding(
-                    b.atom.span,
-                    f"{b.label} of geometry `{geometry.name.value}` {where}, closer than "
-                    f"{geo.format_length(limit, unit)}, half the sum of their covalent radii{hint}",
-                    related=(Related(a.atom.span, f"{a.label} is here"),),
+                    geometry.name.span,
+                    f"geometry `{geometry.name.value}` has {unreported} more atom{'s' * (unreported != 1)} too "
+                    f"close to another atom, not reported one by one (only the first {MAX_FINDINGS} findings are)",
                 )
+
+
+def _pair(ctx: Context, geometry, p, hint: str):
+    a, b = p.a, p.b
+    unit = geometry.unit
+    limit = geo.TOO_CLOSE_RATIO * p.radius_sum
+    if p.distance < 1e-6:
+        where = f"sits at the same position as {a.label}"
+    else:
+        where = f"is {geo.format_length(p.distance, unit)} from {a.label}"
+    return ctx.finding(
+        b.atom.span,
+        f"{b.label} of geometry `{geometry.name.value}` {where}, closer than "
+        f"{geo.format_length(limit, unit)}, half the sum of their covalent radii{hint}",
+        related=(Related(a.atom.span, f"{a.label} is here"),),
+    )
+
+
+def _pile(ctx: Context, geometry, group, hint: str):
+    """One finding for many atoms too close to one atom."""
+    anchor, pairs = group.anchor, group.pairs
+    farthest = max(p.distance for p in pairs)
+    if farthest < 1e-6:
+        where = f"sit at the same position as {anchor.label}"
+    else:
+        where = f"are within {geo.format_length(farthest, geometry.unit)} of {anchor.label}"
+    return ctx.finding(
+        pairs[0].b.atom.span,
+        f"{len(pairs)} atoms of geometry `{geometry.name.value}` ({geo.labels(p.b for p in pairs)}) {where}, "
+        f"each closer than half the sum of the covalent radii{hint}",
+        related=(Related(anchor.atom.span, f"{anchor.label} is here"),),
+    )

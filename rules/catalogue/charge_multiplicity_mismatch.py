@@ -23,9 +23,9 @@ INFO = RuleInfo(
     ),
     references=(
         "IUPAC Compendium of Chemical Terminology (Gold Book), entry 'multiplicity' "
-        "(spin multiplicity 2S + 1) [from memory]",
+        "(spin multiplicity 2S + 1)",  # from memory
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 2.4 "
-        "(spin-adapted configurations) [from memory]",
+        "(spin-adapted configurations)",  # from memory
     ),
     bad_example=(
         "geometry no2 {\n  N 0 0 0\n  O 0 1.0989 0.4653\n  O 0 -1.0989 0.4653\n}\n"

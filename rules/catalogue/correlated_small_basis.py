@@ -26,7 +26,7 @@ INFO = RuleInfo(
         "T. H. Dunning Jr., J. Chem. Phys. 90, 1007 (1989)",
         "R. A. Kendall, T. H. Dunning Jr., R. J. Harrison, J. Chem. Phys. 96, 6796 (1992)",
         "T. Helgaker, W. Klopper, H. Koch, J. Noga, J. Chem. Phys. 106, 9639 (1997) (basis-set "
-        "convergence of the correlation energy) [from memory]",
+        "convergence of the correlation energy)",  # from memory
     ),
     threshold_note=(
         "Double zeta or smaller as too small for a correlated ionization energy or electron affinity: "

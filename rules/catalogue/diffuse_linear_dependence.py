@@ -39,7 +39,7 @@ INFO = RuleInfo(
     references=(
         "R. A. Kendall, T. H. Dunning Jr., R. J. Harrison, J. Chem. Phys. 96, 6796 (1992)",
         "D. E. Woon, T. H. Dunning Jr., J. Chem. Phys. 100, 2975 (1994) (doubly and triply augmented "
-        "sets) [from memory]",
+        "sets)",  # from memory
     ),
     threshold_note=(
         f"More than {MAX_ATOMS} atoms (ghost atoms included, they carry functions): common practice, "

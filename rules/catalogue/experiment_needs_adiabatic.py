@@ -22,15 +22,20 @@ INFO = RuleInfo(
     why=(
         "Photodetachment experiments measure the adiabatic electron affinity: the 0-0 transition "
         "between the relaxed anion and the relaxed neutral, each in its vibrational ground state "
-        "(NO2, for example, 2.273 eV; Ervin, Ho, Lineberger 1988). Measured ionization energies are "
-        "likewise 0-0 values. A vertical number, or an adiabatic one without the zero-point energy "
-        "of each state (frequencies = true), is not the quantity the experiment reports. Single "
-        "atoms have neither relaxation nor zero-point energy and are not reported."
+        "(NO2, for example, 2.273 eV; Ervin, Ho, Lineberger 1988); a vertical electron affinity is "
+        "not measured as such. Photoelectron spectra give ionization energies both ways, the "
+        "adiabatic one from the 0-0 band and the vertical one from the band maximum, and tables "
+        "mostly list the adiabatic value, so compare like with like. An adiabatic number without "
+        "the zero-point energy of each state (frequencies = true) is not the 0-0 quantity the "
+        "experiment reports. Single atoms have neither relaxation nor zero-point energy and are not "
+        "reported."
     ),
     references=(
         "J. C. Rienstra-Kiracofe, G. S. Tschumper, H. F. Schaefer III, S. Nandi, G. B. Ellison, "
         "Chem. Rev. 102, 231-282 (2002) (photoelectron experiments give adiabatic electron "
         "affinities; zero-point corrections in theory)",
+        "D. W. Turner, C. Baker, A. D. Baker, C. R. Brundle, Molecular Photoelectron Spectroscopy "
+        "(Wiley 1970) (adiabatic and vertical ionization energies from one band)",  # from memory
         "K. M. Ervin, J. Ho, W. C. Lineberger, J. Phys. Chem. 92, 5405 (1988) (adiabatic EA of NO2)",
     ),
     bad_example=(
@@ -82,7 +87,7 @@ def check(ctx: Context):
             yield ctx.finding(
                 span,
                 f"the study compares adiabatic energies with experiment, but `{rs.name}` in `{d.name}` has no "
-                f"frequencies = true: measured values are 0-0 transitions that include the zero-point energy of "
-                f"each state, which needs a frequency calculation",
+                f"frequencies = true: adiabatic measured values are 0-0 transitions, which include the zero-point "
+                f"energy of each state, and that needs a frequency calculation",
                 related=(Related(study.compare.span, "compared with experiment here"),),
             )

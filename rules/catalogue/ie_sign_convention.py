@@ -24,7 +24,7 @@ INFO = RuleInfo(
         "NIST Chemistry WebBook, NIST SRD 69, Gas phase ion energetics data (S. G. Lias, "
         "J. E. Bartmess et al.)",
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 "
-        "(IP = E(N-1) - E(N)) [from memory]",
+        "(IP = E(N-1) - E(N))",  # from memory
     ),
     bad_example=_HEAD + "derive ie = energy(neutral) - energy(cation) in ev\n",
     fires_at="energy(neutral) - energy(cation)",

@@ -27,7 +27,7 @@ INFO = RuleInfo(
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
         "IUPAC Gold Book, Koopmans' theorem, K03411 (Pure Appl. Chem. 71, 1919 (1999), p. 1949)",
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 (Koopmans "
-        "ionization energies too large; correlation partly cancels) [from memory]",
+        "ionization energies too large; correlation partly cancels)",  # from memory
     ),
     bad_example=_HEAD + "derive ie = -orbital(neutral, homo) in ev\n",
     fires_at="orbital(neutral, homo)",

@@ -28,7 +28,7 @@ INFO = RuleInfo(
     ),
     references=(
         "F. Jensen, Introduction to Computational Chemistry, 3rd ed. (Wiley 2017), on error "
-        "cancellation in energy differences [from memory]",
+        "cancellation in energy differences",  # from memory
         "J. C. Rienstra-Kiracofe et al., Chem. Rev. 102, 231-282 (2002) (electron affinities as "
         "differences of energies at one level of theory)",
     ),

@@ -22,10 +22,8 @@ INFO = RuleInfo(
         "double-zeta set (with diffuse functions for anions)."
     ),
     references=(
-        "W. J. Hehre, R. F. Stewart, J. A. Pople, J. Chem. Phys. 51, 2657 (1969) (the STO-nG minimal sets) "
-        "[from memory]",
-        "F. Jensen, Introduction to Computational Chemistry, 3rd ed. (Wiley 2017), chapter on basis sets "
-        "[from memory]",
+        "W. J. Hehre, R. F. Stewart, J. A. Pople, J. Chem. Phys. 51, 2657 (1969) (the STO-nG minimal sets)",  # from memory
+        "F. Jensen, Introduction to Computational Chemistry, 3rd ed. (Wiley 2017), chapter on basis sets",  # from memory
     ),
     threshold_note="Minimal means the basis library counts one function per valence orbital (zeta 'minimal').",
     bad_example=(

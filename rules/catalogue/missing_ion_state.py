@@ -18,6 +18,7 @@ from ..ion_states import (
     orbital_pair,
     partner,
 )
+from ..species_facts import anion_is_unbound, unbound_anion_in
 
 _CNL = "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
 _HEAD = (
@@ -46,7 +47,7 @@ INFO = RuleInfo(
         "as energy differences",
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 "
-        "(Koopmans' theorem: no relaxation, no correlation) [from memory]",
+        "(Koopmans' theorem: no relaxation, no correlation)",  # from memory
     ),
     bad_example=_HEAD + "derive ea_eig = -orbital(radical, lumo) in ev\n",
     fires_at="ea_eig",
@@ -72,7 +73,10 @@ INFO = RuleInfo(
 
 
 def _needed_by(ws, d: IonDerive):
-    """The neutral state ``d`` needs an ion of, when that ion is missing."""
+    """The neutral state ``d`` needs an ion of, when that ion is missing
+    (not for a species without a bound anion: unbound-anion says why)."""
+    if unbound_anion_in(ws, d) is not None:
+        return None
     if d.orbital_term is not None:
         pair = orbital_pair(ws, d)
         return pair.neutral if pair is not None and pair.ion is None else None
@@ -131,7 +135,7 @@ def check(ctx: Context):
         if rs.charge != 0 or geo is None or geo in seen_geometries:
             continue
         seen_geometries.add(geo)
-        if partner(ws, rs, STEP[quantity]) is not None:
+        if partner(ws, rs, STEP[quantity]) is not None or (quantity == EA and anion_is_unbound(rs)):
             continue
         charge = STEP[quantity]
         fx = add_ion_fix(ws, rs, quantity)

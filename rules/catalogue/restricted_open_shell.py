@@ -19,7 +19,7 @@ INFO = RuleInfo(
     ),
     references=(
         "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), sections 3.8 "
-        "(unrestricted open-shell Hartree-Fock) [from memory]",
+        "(unrestricted open-shell Hartree-Fock)",  # from memory
     ),
     bad_example=(
         "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"

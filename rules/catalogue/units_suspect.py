@@ -76,20 +76,20 @@ def check(ctx: Context):
             if verdict.declared_range[1] < geo.SHORTEST_BOND_RATIO:
                 as_written = (
                     f"every atom is closer to its nearest neighbour than any bond "
-                    f"({_range(*verdict.declared_range)} of the sum of the covalent radii; bonds start near "
+                    f"({_range(*verdict.declared_range)} times the sum of the covalent radii; bonds start near "
                     f"{geo.SHORTEST_BOND_RATIO})"
                 )
             else:
                 as_written = (
                     f"no atom has a neighbour at bonding distance (nearest at "
-                    f"{_range(*verdict.declared_range)} of the sum of the covalent radii; bonds end near "
+                    f"{_range(*verdict.declared_range)} times the sum of the covalent radii; bonds end near "
                     f"{geo.BOND_TOLERANCE})"
                 )
             span = geometry.units.span if geometry.units else geometry.name.span
             yield ctx.finding(
                 span,
                 f"geometry `{geometry.name.value}` with {declared}: {as_written}; read in {verdict.likely} "
-                f"the same numbers give ordinary bond lengths ({_range(*verdict.likely_range)} of the sum): "
+                f"the same numbers give ordinary bond lengths ({_range(*verdict.likely_range)} times the sum): "
                 f"the coordinates look like {verdict.likely} values",
                 fixes=(
                     fix(f"Set units = {verdict.likely}", _units_edit(pf.index, geometry, verdict.likely), risky=True),

@@ -20,7 +20,7 @@ INFO = RuleInfo(
     ),
     references=(
         "IUPAC, Nomenclature of Inorganic Chemistry (Red Book, 2005), Table I: element names and "
-        "symbols [from memory]",
+        "symbols",  # from memory
     ),
     bad_example="geometry cn {\n  C 0 0 0\n  Nn 0 0 1.1718\n}\n",
     fires_at="Nn",

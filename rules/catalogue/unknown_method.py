@@ -16,11 +16,12 @@ INFO = RuleInfo(
         "deckward knows what a method is (Hartree-Fock, a density functional and its rung, a "
         "correlated wavefunction method) from its method table, and the rules about orbital "
         "energies, correlation and basis size depend on that. A word outside the table is either "
-        "misspelt or a method deckward cannot judge or run; those rules then stay silent about it."
+        "misspelt or a method deckward cannot judge or run; those rules then stay silent about it. "
+        "Methods of the trade that deckward recognises without handling them (CASSCF, CASPT2, "
+        "NEVPT2, EOM-CCSD, GW, ...) are reported for information, with no suggestion."
     ),
     references=(
-        "Q. Sun et al., J. Chem. Phys. 153, 024109 (2020): the PySCF methods the runner builds "
-        "[from memory]",
+        "Q. Sun et al., J. Chem. Phys. 153, 024109 (2020): the PySCF methods the runner builds",  # from memory
     ),
     bad_example=(
         "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
@@ -61,6 +62,16 @@ def check(ctx: Context):
     for pf in ctx.workspace.files:
         for word, where in _method_words(pf.deck):
             if methods.lookup(word.value) is not None:
+                continue
+            what = methods.recognised_only(word.value)
+            if what is not None:
+                yield ctx.finding(
+                    word.span,
+                    f"`{word.value}` in {where} is {what}, which deckward recognises but cannot judge or run: the "
+                    f"rules about orbital energies, correlation and basis size stay silent about it, and `deckward "
+                    f"run` cannot compute it",
+                    severity=Severity.INFO,
+                )
                 continue
             close = methods.closest(word.value, n=3)
             hint = f"; did you mean {_or_list(close)}?" if close else ""

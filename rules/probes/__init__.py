@@ -39,3 +39,24 @@ def run_probes(ws, config=None, cache=None, select: Optional[set] = None) -> lis
             out.append(Finding(info.id, Severity.INFO, f"probe failed: {type(e).__name__}: {e}",
                                ws.root.index.span(0, 0)))
     return out
+
+
+def unprobed_reason(ws) -> Optional[str]:
+    """Why no probe could look at any state of the deck (None when at least
+    one state maps to a calculation): "0 findings" must not read as a clean
+    bill when nothing was computed."""
+    from ..runner.mapping import MappingError, plan_state
+
+    if not ws.states:
+        return "it defines no states"
+    first = None
+    for name in ws.states:
+        try:
+            plan_state(ws, name)
+            return None
+        except MappingError as e:
+            first = first or e
+        except KeyError:
+            continue
+    why = f": {first.located()}" if first is not None else ""
+    return "no state could be mapped to a calculation" + why

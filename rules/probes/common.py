@@ -39,7 +39,10 @@ class ProbeSettings:
     @classmethod
     def from_config(cls, config: Optional[Config]) -> "ProbeSettings":
         p = config.probe if config is not None else {}
-        return cls(int(p.get("max_basis_functions", DEFAULT_MAX_BASIS_FUNCTIONS)),
+        # the configuration admits only finite positive numbers; a Config made
+        # in code may still hold inf, which means "no bound"
+        size = p.get("max_basis_functions", DEFAULT_MAX_BASIS_FUNCTIONS)
+        return cls(int(size) if size != float("inf") else 10**9,
                    float(p.get("time_limit_s", DEFAULT_TIME_LIMIT_S)),
                    float(p.get("threshold_ev", DEFAULT_THRESHOLD_EV)))
 
@@ -146,9 +149,14 @@ class ProbeContext:
     def n_basis(self, plan: StatePlan) -> int:
         key = self.cache.key(plan)
         if key not in self._sizes:
-            from ..runner.pyscf_build import build_mole
+            from ..runner.cost import n_basis
 
-            self._sizes[key] = int(build_mole(plan).nao)
+            n = n_basis(plan)  # from the basis index: a 10,000-atom deck is never built to be refused
+            if n is None:
+                from ..runner.pyscf_build import build_mole
+
+                n = int(build_mole(plan).nao)
+            self._sizes[key] = n
         return self._sizes[key]
 
     def too_large(self, plan: StatePlan) -> Optional[str]:

@@ -26,7 +26,7 @@ INFO = RuleInfo(
     ),
     references=(
         "T. Koopmans, Physica 1, 104-113 (1934), doi:10.1016/S0031-8914(34)90011-2",
-        "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3 [from memory]",
+        "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.3",  # from memory
     ),
     bad_example=(
         "geometry hf {\n  H 0 0 0\n  F 0 0 0.917\n}\n"

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from deckward.grammar.findings import RuleInfo, Severity
 
-from .common import ProbeContext, finding
+from .common import ProbeContext, ProbeSkipped, finding, skipped
 
 THRESHOLD = 1e-6  # catalogue: "below about 1e-6" (common practice, no source)
 
@@ -35,11 +35,62 @@ INFO = RuleInfo(
 )
 
 
+def _overlap_worker(plan_dict: dict, conn) -> None:
+    """In a worker process: the overlap spectrum summary of one plan."""
+    from ..runner.interrupt import ignore_in_worker
+
+    ignore_in_worker()
+    try:
+        import numpy as np
+
+        from ..runner.plan import plan_from_dict
+        from ..runner.pyscf_build import build_mole
+
+        mol = build_mole(plan_from_dict(plan_dict))
+        eigenvalues = np.linalg.eigvalsh(mol.intor_symmetric("int1e_ovlp"))
+        conn.send(("ok", (float(eigenvalues[0]), int((eigenvalues < THRESHOLD).sum()), int(mol.nao))))
+    except Exception as e:  # reported as a skipped probe, in one line
+        try:
+            conn.send(("failed", f"{type(e).__name__}: {e}"))
+        except OSError:
+            pass
+    except BaseException:
+        pass
+
+
+def overlap_summary(plan, time_limit_s: float):
+    """(smallest eigenvalue, count below THRESHOLD, basis functions), computed
+    in a worker process that is stopped at ``time_limit_s``; raises
+    ProbeSkipped when it is stopped or fails."""
+    from dataclasses import asdict
+
+    from ..runner.parallel import _context
+
+    ctx = _context()
+    receive, send = ctx.Pipe(duplex=False)
+    proc = ctx.Process(target=_overlap_worker, args=(asdict(plan), send), daemon=True)
+    proc.start()
+    send.close()
+    try:
+        if not receive.poll(time_limit_s):
+            raise ProbeSkipped(f"the overlap matrix of `{plan.name}` with {plan.basis_label} took longer than "
+                               f"probe.time_limit_s = {time_limit_s:g} s")
+        try:
+            kind, payload = receive.recv()
+        except EOFError:
+            raise ProbeSkipped(f"the overlap matrix of `{plan.name}` could not be computed (the worker ended, "
+                               "out of memory?)")
+        if kind != "ok":
+            raise ProbeSkipped(f"the overlap matrix of `{plan.name}` could not be computed: {payload}")
+        return payload
+    finally:
+        receive.close()
+        if proc.is_alive():
+            proc.kill()
+        proc.join()
+
+
 def probe(ctx: ProbeContext):
-    import numpy as np
-
-    from ..runner.pyscf_build import build_mole
-
     seen: set[str] = set()
     for name in ctx.ws.states:
         plan = ctx.plan(name)
@@ -49,17 +100,21 @@ def probe(ctx: ProbeContext):
         if key in seen:
             continue
         seen.add(key)
-        mol = build_mole(plan)
-        eigenvalues = np.linalg.eigvalsh(mol.intor_symmetric("int1e_ovlp"))
-        smallest = float(eigenvalues[0])
+        try:
+            reason = ctx.too_large(plan)
+            if reason is not None:
+                raise ProbeSkipped(reason)
+            smallest, below, nao = overlap_summary(plan, ctx.settings.time_limit_s)
+        except ProbeSkipped as e:
+            yield skipped(INFO, ctx.state_span(name), str(e))
+            continue
         if smallest >= THRESHOLD:
             continue
-        below = int((eigenvalues < THRESHOLD).sum())
         yield finding(INFO, ctx.state_span(name), (
-            f"smallest overlap eigenvalue {smallest:.1e} with {plan.basis_label} ({below} of {mol.nao} below "
+            f"smallest overlap eigenvalue {smallest:.1e} with {plan.basis_label} ({below} of {nao} below "
             f"{THRESHOLD:g}): the basis is nearly linearly dependent for `{name}`"), {
             "basis": plan.basis_label,
             "smallest_overlap_eigenvalue": smallest,
             "below_threshold": below,
-            "n_basis": int(mol.nao),
+            "n_basis": nao,
         })

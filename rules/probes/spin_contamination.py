@@ -25,8 +25,8 @@ INFO = RuleInfo(
         "restricted open-shell reference, or a method less sensitive to the reference, is then safer."
     ),
     references=(
-        "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.8 [from memory]",
-        "D. Young, Computational Chemistry: A Practical Guide (Wiley 2001) [from memory]",
+        "A. Szabo, N. S. Ostlund, Modern Quantum Chemistry (Dover 1996), section 3.8",  # from memory
+        "D. Young, Computational Chemistry: A Practical Guide (Wiley 2001)",  # from memory
     ),
     bad_example=(
         "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
@@ -39,7 +39,7 @@ INFO = RuleInfo(
         "level hf_dz { method = hf basis = cc-pvdz reference = unrestricted }\n"
         "state radical { geometry = oh level = hf_dz charge = 0 multiplicity = 2 }\n"
     ),
-    threshold_note="deviation above 10 % of S(S+1) (common practice; D. Young 2001, from memory)",
+    threshold_note="deviation above 10 % of S(S+1) (common practice; D. Young 2001)",  # Young: from memory
 )
 
 

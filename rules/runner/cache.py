@@ -8,7 +8,11 @@ PySCF recomputes everything.  Only finished states are stored: a failure
 may be a time limit or memory, and the next run should try again.
 
 Folder: ``$DECKWARD_CACHE_DIR/runs`` if set, else ``~/.cache/deckward/runs``;
-PySCF's log of a state lives beside its result (``<key>.log``).
+PySCF's log of a state lives beside its result (``<key>.log``).  An entry is
+served only when it has the exact shape of a result with finite numbers
+(``cache_entry``); a folder that cannot be used is reported by ``check``
+before anything runs, and a failed store (a full disk) becomes a note, never
+a crash.
 """
 from __future__ import annotations
 
@@ -18,7 +22,12 @@ import tempfile
 from functools import lru_cache
 from typing import Optional
 
+from . import cache_entry
 from .plan import StatePlan, content_hash
+
+
+class CacheUnusable(Exception):
+    """The cache folder cannot hold results (the message says why)."""
 
 
 def default_cache_dir() -> str:
@@ -44,12 +53,31 @@ class RunCache:
     def __init__(self, folder: Optional[str] = None, enabled: bool = True) -> None:
         self.folder = folder or default_cache_dir()
         self.enabled = enabled
+        self.notes: list[str] = []  # stores that failed, in words
+
+    def check(self) -> None:
+        """Raise CacheUnusable when the folder cannot be made or written."""
+        if os.path.exists(self.folder) and not os.path.isdir(self.folder):
+            raise CacheUnusable(f"the run cache {self.folder} is not a folder; remove it or choose another "
+                                "with --cache-dir (or --no-cache)")
+        try:
+            os.makedirs(self.folder, exist_ok=True)
+        except OSError as e:
+            raise CacheUnusable(f"the run cache {self.folder} cannot be made ({e.strerror or e}); choose another "
+                                "with --cache-dir")
+        if not os.access(self.folder, os.W_OK | os.X_OK):
+            raise CacheUnusable(f"the run cache {self.folder} cannot be written; choose another with --cache-dir")
 
     def key(self, plan: StatePlan) -> str:
         return content_hash(plan, pyscf_version())
 
-    def log_path(self, key: str) -> str:
-        os.makedirs(self.folder, exist_ok=True)
+    def log_path(self, key: str) -> Optional[str]:
+        """Where the state's PySCF log goes (None: the folder cannot be made,
+        the state runs without a log)."""
+        try:
+            os.makedirs(self.folder, exist_ok=True)
+        except OSError:
+            return None
         return os.path.join(self.folder, key + ".log")
 
     def get(self, key: str) -> Optional[dict]:
@@ -59,16 +87,29 @@ class RunCache:
         try:
             with open(path, encoding="utf-8") as f:
                 data = json.load(f)
-        except (OSError, ValueError):
+        except (OSError, ValueError, RecursionError):
             return None
-        return data if isinstance(data, dict) and data.get("status") == "ok" else None
+        return data if cache_entry.problem(data) is None else None
 
     def put(self, key: str, result: dict) -> None:
-        if not self.enabled or result.get("status") != "ok":
+        if not self.enabled or result.get("status") != "ok" or not cache_entry.finite_result(result):
             return
-        os.makedirs(self.folder, exist_ok=True)
         stored = dict(result, cached=False)
-        fd, tmp = tempfile.mkstemp(dir=self.folder, prefix=".tmp-", suffix=".json")
-        with os.fdopen(fd, "w", encoding="utf-8") as f:
-            json.dump(stored, f)
-        os.replace(tmp, os.path.join(self.folder, key + ".json"))  # atomic: parallel runs never see half a file
+        tmp = None
+        try:
+            os.makedirs(self.folder, exist_ok=True)
+            fd, tmp = tempfile.mkstemp(dir=self.folder, prefix=".tmp-", suffix=".json")
+            with os.fdopen(fd, "w", encoding="utf-8") as f:
+                json.dump(stored, f)
+            os.replace(tmp, os.path.join(self.folder, key + ".json"))  # atomic: parallel runs never see half a file
+            tmp = None
+        except OSError as e:
+            note = f"results were not stored in the run cache {self.folder}: {e.strerror or e}"
+            if note not in self.notes:
+                self.notes.append(note)
+        finally:
+            if tmp is not None:
+                try:
+                    os.unlink(tmp)
+                except OSError:
+                    pass

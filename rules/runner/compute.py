@@ -262,6 +262,10 @@ def compute_state(plan: StatePlan, log_path: Optional[str] = None, max_memory_mb
             lib.num_threads(int(threads))
         with contextlib.redirect_stdout(log), contextlib.redirect_stderr(log):
             _compute(plan, out, log, log_path, max_memory_mb)
+        from .cache_entry import finite_result
+
+        if not finite_result(out):
+            raise _Failure("PySCF returned an energy that is not a finite number (see the log)")
         out["status"] = "ok"
     except _Failure as e:
         out["status"] = "unconverged" if "converge" in str(e) else "failed"

@@ -58,14 +58,19 @@ def _context():
 
 def _worker(plan_dict: dict, log_path: Optional[str], max_memory_mb, threads, conn) -> None:
     from .compute import compute_state
+    from .interrupt import ignore_in_worker
 
-    conn.send(("started", None))  # the time limit counts from here, not from process start-up
+    ignore_in_worker()
     try:
-        result = compute_state(plan_from_dict(plan_dict), log_path, max_memory_mb, threads)
-    except BaseException as e:  # compute_state catches everything; this is the last guard
-        result = {"status": "failed", "reason": f"worker failed: {type(e).__name__}: {e}"}
-    conn.send(("result", result))
-    conn.close()
+        conn.send(("started", None))  # the time limit counts from here, not from process start-up
+        try:
+            result = compute_state(plan_from_dict(plan_dict), log_path, max_memory_mb, threads)
+        except BaseException as e:  # compute_state catches everything; this is the last guard
+            result = {"status": "failed", "reason": f"worker failed: {type(e).__name__}: {e}"}
+        conn.send(("result", result))
+        conn.close()
+    except OSError:
+        pass  # the command stopped (Ctrl-C) and closed its end: nobody is waiting for the result
 
 
 def _failure(plan: StatePlan, reason: str, log_path: Optional[str], took: float) -> dict:
@@ -106,15 +111,29 @@ def execute(plans: list[StatePlan], cache: RunCache, options: Optional[RunOption
     with progress:
         if not options.use_workers():
             from .compute import compute_state
+            from .interrupt import immediate_interrupt
 
-            for key, group in todo.items():
-                plan = group[0]
-                progress.started(plan.name)
-                finish(key, compute_state(plan, cache.log_path(key), options.max_memory_mb,
-                                          options.threads_per_state()))
+            with immediate_interrupt():
+                _run_here(todo, cache, options, progress, finish, compute_state)
         else:
             _run_workers(todo, cache, options, progress, finish)
     return {p.name: results[p.name] for p in plans}
+
+
+def _run_here(todo, cache: RunCache, options: RunOptions, progress: Progress, finish, compute_state) -> None:
+    for key, group in todo.items():
+        plan = group[0]
+        progress.started(plan.name)
+        finish(key, compute_state(plan, cache.log_path(key), options.max_memory_mb, options.threads_per_state()))
+
+
+def poll_timeout(starts, limit: Optional[float], now: float, tick: float = 0.25) -> float:
+    """How long to wait for workers: the display tick, or less when a state
+    reaches its time limit sooner (a limit below the tick is kept too)."""
+    if not limit:
+        return tick
+    left = [start + limit - now for start in starts if start is not None]
+    return max(0.0, min([tick] + left))
 
 
 def _run_workers(todo, cache: RunCache, options: RunOptions, progress: Progress, finish) -> None:
@@ -136,7 +155,8 @@ def _run_workers(todo, cache: RunCache, options: RunOptions, progress: Progress,
                 send.close()
                 progress.started(plan.name)
                 running[key] = [plan, proc, receive, None]
-            wait([r[2] for r in running.values()] + [r[1].sentinel for r in running.values()], timeout=0.25)
+            wait([r[2] for r in running.values()] + [r[1].sentinel for r in running.values()],
+                 timeout=poll_timeout([r[3] for r in running.values()], limit, time.monotonic()))
             for key in list(running):
                 plan, proc, conn, start = running[key]
                 result = None
@@ -159,7 +179,7 @@ def _run_workers(todo, cache: RunCache, options: RunOptions, progress: Progress,
                     proc.join()
                     result = _failure(plan, f"the worker ended without a result (exit code {proc.exitcode}; "
                                       "out of memory?)", cache.log_path(key), took)
-                elif limit and start is not None and time.monotonic() - start > limit:
+                elif limit and start is not None and time.monotonic() - start >= limit:
                     took = time.monotonic() - start
                     proc.kill()
                     proc.join()

@@ -5,6 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Optional
 
+from ..units import unit_symbol
+
 CAUTION = (
     "Computed values depend on the method and the basis set; decisions that rest on them need "
     "comparison with experiment and expert judgement."
@@ -56,6 +58,17 @@ def _table(header: list[str], rows: list[list[str]]) -> str:
     return "\n".join([line(header), line(["-" * w for w in widths])] + [line(r) for r in rows])
 
 
+def scf_column(s: dict) -> str:
+    """What the SCF column says: the SCF's own outcome, so that a failed
+    correlated step (CCSD not converging) is not blamed on the SCF; the
+    state's outcome is in the notes below the table."""
+    if s.get("scf_converged") is True:
+        return "converged"
+    if s.get("scf_converged") is False:
+        return "unconverged"
+    return s["status"] if s["status"] != "ok" else "converged"
+
+
 def format_report(report: RunReport) -> str:
     out = [f"deck {report.deck} (PySCF {report.pyscf_version})", ""]
     if report.mapping_errors:
@@ -63,9 +76,7 @@ def format_report(report: RunReport) -> str:
     rows = []
     notes = []
     for s in report.states:
-        status = s["status"] if not s.get("cached") else s["status"] + " (cached)"
-        if s["status"] == "ok" and s.get("scf_converged"):
-            status = "converged" + (" (cached)" if s.get("cached") else "")
+        status = scf_column(s) + (" (cached)" if s.get("cached") else "")
         s2 = "" if s.get("s2") is None else f"{s['s2']:.4f} ({s['s2_expected']:.2f})"
         rows.append([
             s["name"],
@@ -86,7 +97,7 @@ def format_report(report: RunReport) -> str:
     if report.derived:
         drows = []
         for d in report.derived:
-            drows.append([d.name, d.quantity or "", _fmt(d.value, 6), d.unit if d.available else "",
+            drows.append([d.name, d.quantity or "", _fmt(d.value, 6), unit_symbol(d.unit) if d.available else "",
                           "" if d.available else f"not available: {d.reason}"])
         out += ["", _table(["derived", "quantity", "value", "unit", ""], drows)]
     out += ["", "Caution: " + CAUTION, ""]

@@ -1,0 +1,86 @@
+"""Reading a deck (or any file deckward reads) without hanging or overrunning.
+
+``open(path).read()`` blocks forever on a FIFO with no writer, never ends on
+``/dev/zero`` and raises ``ValueError`` (not ``OSError``) for a path with a
+NUL character or a lone surrogate.  Every reader of user-named files goes
+through ``read_regular``: the file is opened without blocking, checked to be
+a regular file by its open descriptor (so a swap between check and open
+cannot fool it), and read up to a size limit.  Every problem is an
+``OSError`` whose ``strerror`` says in words what is wrong, so callers turn
+it into one located finding or one line.
+"""
+from __future__ import annotations
+
+import errno
+import os
+import stat
+
+MAX_FILE_BYTES = 20 * 1024 * 1024
+
+
+class NotRegularFile(OSError):
+    """The path names a FIFO, a device, a socket or a folder."""
+
+
+def path_problem(path: str) -> str | None:
+    """Why ``path`` cannot name a file at all (a NUL character, a lone
+    surrogate), else None."""
+    if "\0" in path:
+        return "the path contains a NUL character"
+    try:
+        os.fsencode(path)
+    except UnicodeError:
+        return "the path contains a character that cannot be a file name"
+    return None
+
+
+def kind_of(mode: int) -> str:
+    if stat.S_ISDIR(mode):
+        return "a folder"
+    if stat.S_ISFIFO(mode):
+        return "a FIFO (named pipe)"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    return "not a regular file"
+
+
+def is_regular_file(path: str) -> bool:
+    """``path`` (after symbolic links) is a regular file; never raises."""
+    try:
+        return stat.S_ISREG(os.stat(path).st_mode)
+    except (OSError, ValueError):
+        return False
+
+
+def read_regular(path: str, limit: int = MAX_FILE_BYTES) -> bytes:
+    """Up to ``limit + 1`` bytes of the regular file at ``path`` (a caller
+    sees that the file is too large when more than ``limit`` come back).
+
+    Raises ``NotRegularFile`` for anything but a regular file and
+    ``OSError`` (with ``strerror`` in words) for a path that cannot name a
+    file; never blocks on a FIFO or a device."""
+    problem = path_problem(path)
+    if problem is not None:
+        raise OSError(errno.EINVAL, problem, path)
+    flags = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0) | getattr(os, "O_CLOEXEC", 0)
+    fd = os.open(path, flags)
+    try:
+        mode = os.fstat(fd).st_mode
+        if not stat.S_ISREG(mode):
+            what = kind_of(mode)
+            if stat.S_ISDIR(mode):
+                raise IsADirectoryError(errno.EISDIR, f"it is {what}", path)
+            raise NotRegularFile(errno.EINVAL, f"it is {what}, not a regular file", path)
+        chunks = []
+        left = limit + 1
+        while left > 0:
+            chunk = os.read(fd, min(left, 1 << 20))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            left -= len(chunk)
+        return b"".join(chunks)
+    finally:
+        os.close(fd)
