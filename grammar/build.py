@@ -15,7 +15,6 @@ from . import model as m
 from .findings import Applicability, Finding, Fix, Severity, Span, TextEdit
 from .numbers import MAX_COORDINATE, finite
 from .parser import ParseOutput, parse_text
-from .suggest import closest, edit_distance, replacement_fixes, suggest  # noqa: F401 (edit_distance re-exported)
 from .text_index import LineIndex
 
 MAX_EXPRESSION_DEPTH = 200
@@ -34,10 +33,14 @@ KEYS = {
 
 def closest_names(word: str, candidates, n: int = 1) -> list[str]:
     """The candidates nearest to ``word`` (``deckward.grammar.suggest``)."""
+    from .suggest import closest  # only a misspelling pays for it
+
     return closest(word, candidates, n)
 
 
 def did_you_mean(word: str, candidates, n: int = 1) -> str:
+    from .suggest import suggest
+
     return suggest(word, candidates, n).hint()
 
 
@@ -68,6 +71,8 @@ class _Builder:
     def typo(self, rule: str, span: Span, message: str, word: str, candidates) -> None:
         """A finding for a misspelt key or value, with the nearest candidate
         named and offered as a fix (safe when it is clearly the one meant)."""
+        from .suggest import replacement_fixes, suggest  # only a misspelling pays for it
+
         close = suggest(word, candidates)
         self.error(rule, span, message + close.hint(), replacement_fixes(span, close))
 

@@ -18,7 +18,6 @@ from . import model as m
 from .build import build_deck
 from .findings import Finding, Related, Severity, Span
 from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
-from .suggest import replacement_fixes, suggest
 from .text_index import LineIndex
 
 
@@ -318,6 +317,8 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
             msg = f"`{name.value}` is a {d.kind}, not a {kind}"
             related = (Related(d.name.span, f"`{name.value}` is defined here"),)
         else:
+            from .suggest import replacement_fixes, suggest  # only a misspelling pays for it
+
             close = suggest(name.value, same_kind)
             msg = f"no {kind} is named `{name.value}`" + close.hint()
             related = ()

@@ -63,7 +63,6 @@ def main(argv=None) -> int:
     from .checking import UsageError
 
     _never_fail_to_print()
-    argv = list(sys.argv[1:] if argv is None else argv)
     # The first word names the command (no option comes before it); anything
     # else (--help, --version, a typo) gets the whole parser and its message.
     parser = build_parser(argv[0] if argv and argv[0] in COMMANDS else None)
