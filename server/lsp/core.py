@@ -49,14 +49,23 @@ class DeckProtocol(LanguageServerProtocol):
     reporting upstream: ``_execute_handler`` should pop it itself.)"""
 
     def _execute_handler(self, msg_id, handler, args=None, kwargs=None, callback=None):
+        self._forget_finished()
         super()._execute_handler(msg_id, handler, args=args, kwargs=kwargs, callback=callback)
         future = self._request_futures.get(msg_id)
         if future is not None:
-            def forget(done, msg_id=msg_id):
-                if self._request_futures.get(msg_id) is done:
-                    del self._request_futures[msg_id]
+            # Only noted here: a future can finish while pygls iterates the dict (shutdown cancels the
+            # pending ones), so entries are removed before the next handler runs, never during.
+            future.add_done_callback(lambda done, msg_id=msg_id: self._finished.append((msg_id, done)))
 
-            future.add_done_callback(forget)
+    def _forget_finished(self) -> None:
+        finished = getattr(self, "_finished", None)
+        if finished is None:
+            self._finished = []
+            return
+        while finished:
+            msg_id, done = finished.pop()
+            if self._request_futures.get(msg_id) is done:
+                del self._request_futures[msg_id]
 
 
 class DeckServer(LanguageServer):
