@@ -9,12 +9,18 @@ in-process check alone) and prints the ratios.  The server waits
 ``DEBOUNCE_S`` after the last change before checking; that wait is part of
 what an editor sees and is included.
 
+It also times the start: from launching ``deckward serve`` to the answer
+to ``initialize``, against launching a bare ``python -c pass`` (goal: at
+most 8x), with the early answer (``server/lsp/fast_start.py``) and without
+it (``DECKWARD_LSP_SLOW_START=1``, pygls answering after every import).
+
     python bench/lsp_latency.py [--repeat N]
 """
 from __future__ import annotations
 
 import argparse
 import asyncio
+import json
 import os
 import statistics
 import subprocess
@@ -27,7 +33,7 @@ from pygls.lsp.client import LanguageClient
 from pygls.uris import from_fs_path
 
 from deckward.server.checking import check_paths
-from deckward.server.lsp.diagnostics import DEBOUNCE_S
+from deckward.server.lsp.core import DEBOUNCE_S
 
 SMALL = """\
 # Vertical electron affinity of NO2 (demo deck, invented geometry)
@@ -100,6 +106,38 @@ async def _wait(arrived: dict, version: int, timeout: float = 60.0) -> None:
         await asyncio.sleep(0.001)
 
 
+def bare_python_time(repeat: int) -> float:
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        subprocess.run([sys.executable, "-c", "pass"])
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def initialize_time(repeat: int, slow: bool = False) -> float:
+    """Launch of ``deckward serve`` to the arrival of the initialize answer."""
+    body = json.dumps({"jsonrpc": "2.0", "id": 1, "method": "initialize",
+                       "params": {"processId": None, "rootUri": None, "capabilities": {}}}).encode()
+    env = dict(os.environ, DECKWARD_LSP_SLOW_START="1") if slow else None
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        proc = subprocess.Popen([sys.executable, "-m", "deckward", "serve"], stdin=subprocess.PIPE,
+                                stdout=subprocess.PIPE, env=env)
+        proc.stdin.write(b"Content-Length: %d\r\n\r\n" % len(body) + body)
+        proc.stdin.flush()
+        length = int(proc.stdout.readline().split(b":")[1])
+        while proc.stdout.readline().strip():
+            pass
+        answer = json.loads(proc.stdout.read(length))
+        times.append(time.perf_counter() - start)
+        assert answer["id"] == 1 and "capabilities" in answer["result"], answer
+        proc.kill()
+        proc.wait()
+    return statistics.median(times)
+
+
 def cli_time(path: str, repeat: int) -> float:
     times = []
     for _ in range(repeat):
@@ -123,7 +161,16 @@ def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeat", type=int, default=10)
     args = ap.parse_args()
-    folder = tempfile.mkdtemp(prefix="deckward-bench-")
+    with tempfile.TemporaryDirectory(prefix="deckward-bench-") as folder:
+        return measure(folder, args.repeat)
+
+
+def measure(folder: str, repeat: int) -> int:
+    bare = bare_python_time(max(5, repeat))
+    fast = initialize_time(max(5, repeat))
+    slow = initialize_time(max(3, repeat // 2), slow=True)
+    print(f"python -c pass: {bare * 1000:.0f} ms; initialize answered after {fast * 1000:.0f} ms "
+          f"= {fast / bare:.2f}x (goal <= 8x); without the early answer {slow * 1000:.0f} ms = {slow / bare:.2f}x")
     print(f"debounce in the server: {DEBOUNCE_S * 1000:.0f} ms (included in the LSP latency)")
     print(f"{'deck':<18}{'lines':>6}{'LSP change->diag':>18}{'check (process)':>17}{'check (in-proc)':>17}"
           f"{'LSP/process':>13}{'LSP/in-proc':>13}")
@@ -131,9 +178,9 @@ def main() -> int:
         path = os.path.join(folder, name.replace(" ", "_") + ".deck")
         with open(path, "w", encoding="utf-8") as f:
             f.write(text)
-        lsp = statistics.median(asyncio.run(lsp_latencies(path, text, args.repeat)))
-        proc = cli_time(path, max(3, args.repeat // 2))
-        inproc = in_process_time(path, args.repeat)
+        lsp = statistics.median(asyncio.run(lsp_latencies(path, text, repeat)))
+        proc = cli_time(path, max(3, repeat // 2))
+        inproc = in_process_time(path, repeat)
         print(f"{name:<18}{text.count(chr(10)):>6}{lsp * 1000:>15.1f} ms{proc * 1000:>14.1f} ms"
               f"{inproc * 1000:>14.1f} ms{lsp / proc:>13.2f}{lsp / inproc:>13.2f}")
     return 0

@@ -9,10 +9,11 @@ from __future__ import annotations
 
 import math
 import re
-from typing import Callable, Optional
+from dataclasses import replace
+from typing import Optional
 
 from . import model as m
-from .findings import Finding, Severity, Span
+from .findings import Applicability, Finding, Fix, Severity, Span, TextEdit
 from .numbers import MAX_COORDINATE, finite
 from .parser import ParseOutput, parse_text
 from .text_index import LineIndex
@@ -32,60 +33,17 @@ KEYS = {
 }
 
 
-def edit_distance(a: str, b: str, limit: Optional[int] = None) -> int:
-    """Levenshtein distance with transpositions (optimal string alignment).
-    With ``limit``, any distance above it comes back as ``limit + 1`` as
-    soon as a row shows it (a did-you-mean over thousands of names must
-    not compute every distance in full)."""
-    if a == b:
-        return 0
-    if limit is not None and abs(len(a) - len(b)) > limit:
-        return limit + 1
-    prev2: list[int] = []
-    prev = list(range(len(b) + 1))
-    for i, ca in enumerate(a, 1):
-        cur = [i] + [0] * len(b)
-        for j, cb in enumerate(b, 1):
-            cur[j] = min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (ca != cb))
-            if i > 1 and j > 1 and ca == b[j - 2] and a[i - 2] == cb:
-                cur[j] = min(cur[j], prev2[j - 2] + 1)
-        if limit is not None and min(cur) > limit and min(prev) > limit:
-            return limit + 1  # every later row is at least the smaller of these two
-        prev2, prev = prev, cur
-    return prev[-1] if limit is None else min(prev[-1], limit + 1)
-
-
-# Above this many candidates the similarity search of difflib is skipped: the
-# edit-distance search alone keeps a did-you-mean cheap.
-MAX_FUZZY_CANDIDATES = 1000
-
-
 def closest_names(word: str, candidates, n: int = 1) -> list[str]:
-    """The candidates nearest to ``word``: small edit distance first (so short
-    names like `cm` -> `cn` are found), then difflib's similarity."""
-    cands = list(dict.fromkeys(candidates))
-    low = word.lower()
-    limit = max(1, len(word) // 3)
-    scored = []
-    for c in cands:
-        d = edit_distance(low, c.lower(), limit)
-        if d <= limit:
-            scored.append((d, c))
-    scored.sort(key=lambda t: t[0])
-    out = [c for _, c in scored]
-    if len(out) < n and len(cands) <= MAX_FUZZY_CANDIDATES:
-        import difflib  # only a did-you-mean that edit distance did not answer pays for it
+    """The candidates nearest to ``word`` (``deckward.grammar.suggest``)."""
+    from .suggest import closest  # only a misspelling pays for it
 
-        lowered = {c.lower(): c for c in cands}
-        for m in difflib.get_close_matches(low, list(lowered), n=n, cutoff=0.6):
-            if lowered[m] not in out:
-                out.append(lowered[m])
-    return out[:n]
+    return closest(word, candidates, n)
 
 
 def did_you_mean(word: str, candidates, n: int = 1) -> str:
-    close = closest_names(word, candidates, n)
-    return f"; did you mean `{close[0]}`?" if close else ""
+    from .suggest import suggest
+
+    return suggest(word, candidates, n).hint()
 
 
 class _Builder:
@@ -109,8 +67,16 @@ class _Builder:
         end = min(end, limit)
         return self.index.span(base + start, base + end)
 
-    def error(self, rule: str, span: Span, message: str) -> None:
-        self.findings.append(Finding(rule, Severity.ERROR, message, span))
+    def error(self, rule: str, span: Span, message: str, fixes: tuple = ()) -> None:
+        self.findings.append(Finding(rule, Severity.ERROR, message, span, fixes=fixes))
+
+    def typo(self, rule: str, span: Span, message: str, word: str, candidates) -> None:
+        """A finding for a misspelt key or value, with the nearest candidate
+        named and offered as a fix (safe when it is clearly the one meant)."""
+        from .suggest import replacement_fixes, suggest  # only a misspelling pays for it
+
+        close = suggest(word, candidates)
+        self.error(rule, span, message + close.hint(), replacement_fixes(span, close))
 
     def numbers(self, tokens, sp, what: str, limit: Optional[float] = None) -> Optional[tuple[float, ...]]:
         """The tokens' values, or None after reporting each one that is not
@@ -193,12 +159,8 @@ class _Builder:
             key_tok, value = item.children
             key = str(key_tok).lower()
             if key not in allowed:
-                self.error(
-                    "unknown-key",
-                    sp(key_tok),
-                    f"`{key_tok}` is not a key of a {block} block (keys: {', '.join(allowed)})"
-                    + did_you_mean(key, allowed),
-                )
+                self.typo("unknown-key", sp(key_tok),
+                          f"`{key_tok}` is not a key of a {block} block (keys: {', '.join(allowed)})", key, allowed)
                 continue
             if key in found:
                 first_line = sp(found[key][0]).line
@@ -223,11 +185,8 @@ class _Builder:
             return None
         low = w.value.lower()
         if low not in choices:
-            self.error(
-                "invalid-value",
-                w.span,
-                f"`{w.value}` is not a value of `{key}` (values: {' | '.join(choices)})" + did_you_mean(low, choices),
-            )
+            self.typo("invalid-value", w.span, f"`{w.value}` is not a value of `{key}` (values: {' | '.join(choices)})",
+                      low, choices)
             return None
         return m.Located(low, w.span)
 
@@ -436,11 +395,8 @@ class _Builder:
             if low in m.QUANTITIES:
                 quantity = m.Located(low, sp(q))
             else:
-                self.error(
-                    "invalid-value",
-                    sp(q),
-                    f"`{q}` is not a quantity (quantities: {', '.join(m.QUANTITIES)})" + did_you_mean(low, m.QUANTITIES),
-                )
+                self.typo("invalid-value", sp(q), f"`{q}` is not a quantity (quantities: {', '.join(m.QUANTITIES)})",
+                          low, m.QUANTITIES)
             i += 2
         expr_tree = kids[i]
         unit = None
@@ -450,11 +406,8 @@ class _Builder:
             if low in m.ENERGY_UNITS:
                 unit = m.Located(low, sp(u))
             else:
-                self.error(
-                    "invalid-value",
-                    sp(u),
-                    f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})" + did_you_mean(low, m.ENERGY_UNITS),
-                )
+                self.typo("invalid-value", sp(u), f"`{u}` is not an energy unit (units: {', '.join(m.ENERGY_UNITS)})",
+                          low, m.ENERGY_UNITS)
         if expression_depth(expr_tree) > MAX_EXPRESSION_DEPTH:
             self.error("syntax-error", sp(expr_tree), f"the expression is nested more than {MAX_EXPRESSION_DEPTH} levels deep")
             return None
@@ -504,11 +457,8 @@ class _Builder:
             _, state, orb, *spin = t.children
             match = _ORBITAL_RE.match(str(orb))
             if not match:
-                self.error(
-                    "invalid-value",
-                    sp(orb),
-                    f"`{orb}` is not an orbital (homo, lumo, homo-N, lumo+N)" + did_you_mean(str(orb).lower(), ("homo", "lumo")),
-                )
+                self.typo("invalid-value", sp(orb), f"`{orb}` is not an orbital (homo, lumo, homo-N, lumo+N)",
+                          str(orb).lower(), ("homo", "lumo"))
                 return None
             which, sign, count = match.groups()
             offset = 0
@@ -529,7 +479,7 @@ class _Builder:
             if spin:
                 s = str(spin[0]).lower()
                 if s not in m.SPINS:
-                    self.error("invalid-value", sp(spin[0]), f"`{spin[0]}` is not a spin (alpha, beta)")
+                    self.typo("invalid-value", sp(spin[0]), f"`{spin[0]}` is not a spin (alpha, beta)", s, m.SPINS)
                     return None
                 spin_loc = m.Located(s, sp(spin[0]))
             return m.OrbitalOf(m.Located(str(state), sp(state)), m.Located(which.lower(), sp(orb)), offset, spin_loc, sp(t))
@@ -576,5 +526,43 @@ def build_deck(path: str, text: str) -> tuple[m.Deck, list[Finding], LineIndex]:
     out = parse_text(text, index)
     builder = _Builder(path, text, index)
     deck = builder.build(out)
-    findings = list(out.findings) + builder.findings
+    findings = _with_closing_fixes(list(out.findings), text, index) + builder.findings
     return deck, findings, index
+
+
+def _end_of_block_text(text: str, where: int) -> int:
+    """The end of the last line before ``where`` that is neither blank nor a
+    comment of its own (comments just above a statement belong to it)."""
+    end = where
+    while end > 0:
+        line_start = text.rfind("\n", 0, end - 1) + 1 if text[end - 1] == "\n" else text.rfind("\n", 0, end) + 1
+        line = text[line_start:end].strip()
+        if line and not line.startswith("#"):
+            return line_start + len(text[line_start:end].rstrip())
+        end = line_start
+    return len(text[:where].rstrip())
+
+
+def _with_closing_fixes(findings: list[Finding], text: str, index: LineIndex) -> list[Finding]:
+    """Give each "block ... is not closed" syntax error the fix that closes
+    it: a `}` on a line of its own after the block's last text, indented
+    like the line that opened it, before the statement that follows (the
+    place the parser already ended the block).  Safe: the deck is read the
+    way the parser read it."""
+    if not any(f.rule == "syntax-error" and "is not closed" in f.message for f in findings):
+        return findings
+    from .scanner import scan
+
+    where_by_brace = {block.brace_start: where for block, where, _ in scan(text).unclosed}
+    out = []
+    for f in findings:
+        where = where_by_brace.get(f.span.start) if f.rule == "syntax-error" else None
+        if where is not None and "is not closed" in f.message:
+            at = _end_of_block_text(text, where)
+            line_start = text.rfind("\n", 0, f.span.start) + 1
+            opening_line = text[line_start:f.span.start]
+            indent = opening_line[: len(opening_line) - len(opening_line.lstrip())]
+            edit = TextEdit(index.span(at, at), "\n" + indent + "}")
+            f = replace(f, fixes=f.fixes + (Fix("Close the block with `}`", (edit,), Applicability.SAFE),))
+        out.append(f)
+    return out

@@ -4,9 +4,12 @@ These are rules like any other for users (listed by ``deckward rules``,
 configurable in deckward.yaml, documented in docs/rules.md); their checks
 live in the parser, the model builder and resolution.
 """
-from .findings import RuleInfo, Severity
+from .findings import Applicability, RuleInfo, Severity
 
 _E = Severity.ERROR
+_TYPO_NOTE = ("Replaces the word with the nearest candidate (an edit distance that counts two swapped "
+              "neighbouring letters as one edit). Safe when one candidate is clearly nearest; offered as "
+              "risky when two are equally near.")
 
 LANGUAGE_RULES = (
     RuleInfo(
@@ -19,6 +22,10 @@ LANGUAGE_RULES = (
         references=("The deck language, version 1 (docs/deck-language.md).",),
         bad_example='geometry no2 {\n  N 0 0 0\n  O 0 1.0989 0.4653\n\nstate neutral { geometry = no2 }\n',
         good_example='geometry no2 {\n  N 0 0 0\n  O 0 1.0989 0.4653\n}\n',
+        fix=Applicability.SAFE,
+        fix_note="A block that is not closed gets a `}` on its own line after its last text, before the "
+        "statement that follows: where the parser already ended it.",
+        fixed_example='geometry no2 {\n  N 0 0 0\n  O 0 1.0989 0.4653\n}\n\nstate neutral { geometry = no2 }\n',
     ),
     RuleInfo(
         id="unknown-key",
@@ -29,6 +36,9 @@ LANGUAGE_RULES = (
         references=("The deck language, version 1 (docs/deck-language.md).",),
         bad_example="level hf_dz {\n  method = hf\n  bais = cc-pvdz\n}\n",
         good_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n}\n",
+        fix=Applicability.SAFE,
+        fix_note=_TYPO_NOTE,
+        fixed_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n}\n",
     ),
     RuleInfo(
         id="duplicate-key",
@@ -49,6 +59,9 @@ LANGUAGE_RULES = (
         references=("The deck language, version 1 (docs/deck-language.md).",),
         bad_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n  reference = unrestriced\n}\n",
         good_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n  reference = unrestricted\n}\n",
+        fix=Applicability.SAFE,
+        fix_note=_TYPO_NOTE,
+        fixed_example="level hf_dz {\n  method = hf\n  basis = cc-pvdz\n  reference = unrestricted\n}\n",
     ),
     RuleInfo(
         id="missing-setting",
@@ -71,6 +84,10 @@ LANGUAGE_RULES = (
         bad_example="geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\nlevel hf_dz { method = hf basis = aug-cc-pvdz }\n"
         "state radical { geometry = cn level = hf_dzz charge = 0 multiplicity = 2 }\n",
         good_example="geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\nlevel hf_dz { method = hf basis = aug-cc-pvdz }\n"
+        "state radical { geometry = cn level = hf_dz charge = 0 multiplicity = 2 }\n",
+        fix=Applicability.SAFE,
+        fix_note=_TYPO_NOTE + " The new name is one the deck defines, of the kind the place needs.",
+        fixed_example="geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\nlevel hf_dz { method = hf basis = aug-cc-pvdz }\n"
         "state radical { geometry = cn level = hf_dz charge = 0 multiplicity = 2 }\n",
     ),
     RuleInfo(

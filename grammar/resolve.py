@@ -15,8 +15,8 @@ from dataclasses import dataclass, field
 from typing import Callable, Optional
 
 from . import model as m
-from .build import build_deck, closest_names
-from .findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
+from .build import build_deck
+from .findings import Finding, Related, Severity, Span
 from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
 
@@ -362,16 +362,18 @@ def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] 
             msg = f"`{name.value}` is a {d.kind}, not a {kind}"
             related = (Related(d.name.span, f"`{name.value}` is defined here"),)
         else:
-            related = ()
-            close: list[str] = []
+            from .suggest import Suggestions, replacement_fixes, suggest  # only a misspelling pays for it
+
+            close = Suggestions(())
             if suggested[0] < MAX_SUGGESTIONS:  # past that, a did-you-mean each would cost names x names
                 suggested[0] += 1
                 if kind not in names_of_kind:
                     names_of_kind[kind] = [n for n, dd in definitions.items() if dd.kind == kind]
-                close = closest_names(name.value, names_of_kind[kind])
-            msg = f"no {kind} is named `{name.value}`" + (f"; did you mean `{close[0]}`?" if close else "")
-            if close:
-                fixes = (Fix(f"Use the {kind} `{close[0]}`", (TextEdit(name.span, close[0]),), Applicability.RISKY),)
+                close = suggest(name.value, names_of_kind[kind])
+            msg = f"no {kind} is named `{name.value}`" + close.hint()
+            related = ()
+            # another defined name: the same calculation, spelt right (safe when clearly the one meant)
+            fixes = replacement_fixes(name.span, close, title=f"Use the {kind} `{{}}`")
         findings.append(Finding("undefined-name", Severity.ERROR, msg, name.span, related=related, fixes=fixes))
         return None
 

@@ -281,13 +281,13 @@ def all_names() -> list[str]:
 
 def closest(word: str, n: int = 3) -> list[str]:
     """Canonical names of the library bases most like ``word`` (did-you-mean)."""
-    import difflib  # only a did-you-mean pays for it
+    from deckward.grammar.suggest import closest as nearest
 
     norm = normalize(word.strip())
     if not norm or n <= 0:
         return []
     words = _index()["words"]
-    hits = difflib.get_close_matches(norm, list(words), n=4 * n, cutoff=0.6)
+    hits = nearest(norm, words, n=4 * n, key=normalize)
     out: list[str] = []
     for hit in hits:
         name = words[hit]

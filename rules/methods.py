@@ -189,14 +189,14 @@ def closest(word: str, n: int = 3) -> list[str]:
     is no misspelt hf), and a candidate must be about as long as the word: a
     shared tail like ``scf`` is no typo of ``casscf`` (common practice, no
     source: a typo changes a letter or two)."""
-    import difflib  # only a did-you-mean pays for it
+    from deckward.grammar.suggest import closest as nearest
 
     key = _norm(word)
     if not key or n <= 0 or recognised_only(word) is not None:
         return []
     table = _by_word()
     out: list[str] = []
-    for hit in difflib.get_close_matches(key, list(table), n=4 * n, cutoff=0.6):
+    for hit in nearest(key, table, n=4 * n, key=_norm):
         if abs(len(hit) - len(key)) > max(1, len(key) // 3):
             continue
         name = table[hit].name

@@ -58,10 +58,14 @@ def build_parser(only: Optional[str] = None) -> argparse.ArgumentParser:
 
 
 def main(argv=None) -> int:
+    argv = sys.argv[1:] if argv is None else list(argv)
+    if argv[:1] == ["serve"]:  # the language server starts without loading the other commands
+        from .cmd_serve import main as serve
+
+        return serve(argv[1:])
     from .checking import UsageError
 
     _never_fail_to_print()
-    argv = list(sys.argv[1:] if argv is None else argv)
     # The first word names the command (no option comes before it); anything
     # else (--help, --version, a typo) gets the whole parser and its message.
     parser = build_parser(argv[0] if argv and argv[0] in COMMANDS else None)

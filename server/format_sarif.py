@@ -26,7 +26,6 @@ from .rule_docs import rule_url
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 LEVELS = {Severity.ERROR: "error", Severity.WARNING: "warning", Severity.INFO: "note"}
-TOOL_URI = rule_url("").rsplit("/", 1)[0] + "/"
 
 
 def artifact_location(path: str) -> dict:
@@ -145,7 +144,7 @@ def sarif_log(result: CheckResult, cwd: Optional[str] = None) -> dict:
             "name": "deckward",
             "version": __version__,
             "semanticVersion": __version__,
-            "informationUri": TOOL_URI,
+            "informationUri": rule_url("").rsplit("#", 1)[0],
             "rules": [descriptor(info) for info in rules],
         }},
         "originalUriBaseIds": {"SRCROOT": {"uri": "file://" + quote(root)}},

@@ -21,13 +21,42 @@ CATEGORY_TITLES = {
     "hygiene": "Hygiene",
     "probe": "Probes (computed with PySCF on request)",
 }
-# Where docs/rules.md is published; a group hosting its own copy sets
-# DECKWARD_DOCS_URL (the editor and SARIF links follow it).
-DOCS_URL = os.environ.get("DECKWARD_DOCS_URL", "https://deckward.invalid/docs/rules.md")
+# A group hosting its own copy of docs/rules.md sets DECKWARD_DOCS_URL; the
+# editor's and SARIF's links follow it.  Without it, links point at a copy
+# of the rule documentation of the installed version, written once into the
+# cache folder, so that they always resolve.
+_docs_uri: str | None = None
+
+
+def docs_uri() -> str:
+    """A URI of this version's rule documentation."""
+    global _docs_uri
+    if _docs_uri is None:
+        _docs_uri = os.environ.get("DECKWARD_DOCS_URL") or _local_copy()
+    return _docs_uri
+
+
+def _local_copy() -> str:
+    from pathlib import Path
+
+    from deckward import __version__
+
+    base = os.environ.get("DECKWARD_CACHE_DIR") or os.path.join(os.path.expanduser("~"), ".cache", "deckward")
+    path = Path(base, "docs", f"rules-{__version__}.md").absolute()
+    text = markdown()
+    try:
+        if not path.is_file() or path.read_text(encoding="utf-8") != text:
+            path.parent.mkdir(parents=True, exist_ok=True)
+            tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+            tmp.write_text(text, encoding="utf-8")
+            os.replace(tmp, path)
+    except OSError:  # a read-only home: the link still names the right place
+        pass
+    return path.as_uri()
 
 
 def rule_url(rule_id: str) -> str:
-    return f"{DOCS_URL}#{rule_id}"
+    return f"{docs_uri()}#{rule_id}"
 
 
 def _categories() -> list[tuple[str, list[RuleInfo]]]:

@@ -38,7 +38,7 @@
     (find-file file)
     (run-hooks 'post-command-hook)      ; eglot-ensure connects from there
     (while (and (< (- (float-time) start) timeout)
-                (not (and seen (> (- (float-time) last-change) 0.5))))
+                (not (and (> (length seen) 0) (> (- (float-time) last-change) 0.5))))
       (accept-process-output nil 0.1)
       (let ((now (deck-test--diagnostics)))
         (unless (equal now seen) (setq seen now last-change (float-time)))))

@@ -9,6 +9,7 @@ import sys
 import time
 
 from lsprotocol import types as t
+from pytest_lsp import LanguageClient
 from pygls.uris import from_fs_path
 
 SERVER_COMMAND = [sys.executable, "-m", "deckward", "serve"]
@@ -104,3 +105,63 @@ def brief(diagnostics) -> list[tuple]:
     """(code, start line, start char, end line, end char, message) sorted."""
     return sorted((d.code, d.range.start.line, d.range.start.character, d.range.end.line, d.range.end.character,
                    d.message) for d in diagnostics)
+
+
+class session:
+    """``async with session(root, *args) as client``: a server started with
+    ``deckward serve ARGS`` for one test, initialised on ``root`` with the
+    capabilities of ``profile``, shut down afterwards."""
+
+    def __init__(self, root, *args: str, profile: str = "neovim@v0.7.0"):
+        self.root, self.args, self.profile = root, args, profile
+
+    async def __aenter__(self):
+        from pytest_lsp import ClientServerConfig, client_capabilities
+
+        self.client = await ClientServerConfig(server_command=SERVER_COMMAND + list(self.args)).start()
+        self.client.root = self.root
+        record_diagnostics(self.client)
+        result = await self.client.initialize_session(t.InitializeParams(
+            capabilities=client_capabilities(self.profile), root_uri=uri_of(self.root, "")))
+        self.client.server_capabilities = result.capabilities
+        return self.client
+
+    async def __aexit__(self, *exc):
+        try:
+            await self.client.shutdown_session()
+        finally:
+            await self.client.stop()
+
+
+def client_fixture(folder: str, files: dict | None = None, keep=("restricted-open-shell",),
+                   profile: str = "neovim@v0.7.0"):
+    """A module-scoped pytest-lsp ``client`` fixture: ``deckward serve`` on
+    a fresh workspace ``folder`` holding ``files``, with ``client.root``,
+    ``client.published`` and ``client.server_capabilities`` set."""
+    import pytest_lsp
+    from pytest_lsp import ClientServerConfig, client_capabilities
+
+    @pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
+    async def client(lsp_client: LanguageClient, tmp_path_factory):
+        root = tmp_path_factory.mktemp(folder)
+        write_workspace(root, files or {}, keep=keep)
+        lsp_client.root = root
+        lsp_client.opened = 0
+        record_diagnostics(lsp_client)
+        result = await lsp_client.initialize_session(t.InitializeParams(
+            capabilities=client_capabilities(profile), root_uri=uri_of(root, "")))
+        lsp_client.server_capabilities = result.capabilities
+        yield
+        await lsp_client.shutdown_session()
+
+    return client
+
+
+# The CN radical at a restricted reference (demo deck; geometry invented for the demo) and its one finding.
+RADICAL = (
+    "geometry cn {\n  C  0.0  0.0  0.0\n  N  0.0  0.0  1.1718\n}\n"
+    "level hf_adz { method = hf  basis = aug-cc-pvdz  reference = restricted }\n"
+    "state radical { geometry = cn  level = hf_adz  charge = 0  multiplicity = 2 }\n"
+)
+RADICAL_FINDINGS = [("restricted-open-shell", 4, 61, 4, 71,
+                     "state `radical` has multiplicity 2 (open shell) but level `hf_adz` sets reference = restricted")]

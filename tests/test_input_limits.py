@@ -8,7 +8,7 @@ import random
 import pytest
 
 from deckward.grammar import build, resolve as resolution
-from deckward.grammar.build import edit_distance
+from deckward.grammar.suggest import edit_distance
 from deckward.grammar.formatter import format_text
 from deckward.grammar.text_index import LineIndex
 from deckward.server.cli import main

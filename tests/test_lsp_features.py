@@ -5,14 +5,13 @@ from __future__ import annotations
 import os
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
 from deckward.grammar.formatter import format_text
 from deckward.rules.registry import get as get_rule
-from lsp_support import (SERVER_COMMAND, apply_text_edits, brief, change_document, open_document,
-                         record_diagnostics, uri_of, wait_for_diagnostics, write_workspace)
+from lsp_support import (apply_text_edits, brief, change_document, client_fixture, open_document, uri_of,
+                         wait_for_diagnostics, write_workspace)
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
@@ -59,16 +58,7 @@ state anion { geometry = optimize(cn)  level = tz  charge = -1  multiplicity = 1
 """
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-features")
-    write_workspace(root, {"no2.deck": NO2, "shared.deck": SHARED, "a.deck": USER_A, "b.deck": USER_B})
-    lsp_client.root = root
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-features", files={"no2.deck": NO2, "shared.deck": SHARED, "a.deck": USER_A, "b.deck": USER_B})
 
 
 async def open_fresh(client, name: str, text: str):
@@ -94,7 +84,7 @@ async def test_diagnostics_are_exact_with_utf16_columns(client: LanguageClient):
     ros = next(d for d in diags if d.code == "restricted-open-shell")
     assert ros.severity == t.DiagnosticSeverity.Error
     assert ros.source == "deckward"
-    assert ros.code_description.href.endswith("docs/rules.md#restricted-open-shell")
+    assert ros.code_description.href.endswith(".md#restricted-open-shell")
 
 
 async def test_related_spans_become_related_information(client: LanguageClient):
@@ -135,9 +125,11 @@ async def test_apply_all_safe_fixes_source_action(client: LanguageClient):
         range=t.Range(start=t.Position(line=0, character=0), end=t.Position(line=0, character=0)),
         context=t.CodeActionContext(diagnostics=[], only=[t.CodeActionKind.SourceFixAll])))
     (action,) = actions
-    assert action.title == "Apply all safe fixes in this file (2 fixes)"
+    # the two references, and `electron_afinity` (one letter from `electron_affinity`)
+    assert action.title == "Apply all safe fixes in this file (3 fixes)"
     fixed = apply_text_edits(text, action.edit.changes[uri])
     assert fixed.count("reference = unrestricted") == 2 and "= restricted\n" not in fixed
+    assert "goal = electron_affinity }" in fixed
     change_document(client, uri, fixed, 2)
     after = await wait_for_diagnostics(client, uri, 2)
     assert "restricted-open-shell" not in [d.code for d in after]
@@ -152,8 +144,8 @@ async def hover_at(client, uri, line, character) -> str:
 async def test_hover_on_finding_basis_state_and_method(client: LanguageClient):
     uri, _ = await open_fresh(client, "hover.deck", NO2)
     on_finding = await hover_at(client, uri, 12, 16)
-    assert on_finding.startswith("**restricted-open-shell** (error): state `neutral` has multiplicity 2")
-    assert get_rule("restricted-open-shell").info.why in on_finding
+    assert on_finding.startswith("- **restricted-open-shell** (error): state `neutral` has multiplicity 2")
+    assert get_rule("restricted-open-shell").info.why not in on_finding  # behind the link
 
     on_basis = await hover_at(client, uri, 11, 16)
     # aug-cc-pVDZ: [4s3p2d] on N and O, most diffuse s/p exponents N 0.06124/0.05611, O 0.07896/0.06856
@@ -163,13 +155,13 @@ async def test_hover_on_finding_basis_state_and_method(client: LanguageClient):
 
     on_state = await hover_at(client, uri, 18, 22)  # `neutral` inside energy(neutral)
     # NO2 has 7 + 8 + 8 = 23 electrons.
-    assert "**state neutral**" in on_state
+    assert on_state.startswith("**state** `neutral`")
     assert "- electrons: 23 (odd)" in on_state
     assert "- multiplicity: 2" in on_state
     assert "- reference: restricted" in on_state
 
     on_method = await hover_at(client, uri, 10, 15)
-    assert on_method.startswith("**hf**: family hf (Hartree-Fock)")
+    assert on_method.startswith("`hf`: family hf (Hartree-Fock)")
 
 
 async def complete_at(client, uri, line, character) -> list[str]:

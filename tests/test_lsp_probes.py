@@ -7,11 +7,10 @@ import asyncio
 import time
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
-from lsp_support import SERVER_COMMAND, open_document, record_diagnostics, uri_of, wait_for_diagnostics, write_workspace
+from lsp_support import (client_fixture, open_document, uri_of, wait_for_diagnostics)
 
 pytestmark = [pytest.mark.asyncio(loop_scope="module"), pytest.mark.pyscf]  # computes with PySCF
 
@@ -24,16 +23,7 @@ C_DECK = ("geometry c { C 0 0 0 }\nlevel lv { method = hf basis = 6-31g* }\n"
           "derive ea = energy(neutral) - energy(anion) in ev\n")
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-probes")
-    write_workspace(root, {}, keep=("restricted-open-shell", "probe-basis-sensitivity"))
-    lsp_client.root = root
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.11.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-probes", keep=("restricted-open-shell", "probe-basis-sensitivity"), profile="neovim@v0.11.0")
 
 
 async def test_probe_action_runs_with_progress_and_publishes_findings(client: LanguageClient):

@@ -4,34 +4,18 @@ from __future__ import annotations
 import asyncio
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
-from lsp_support import (SERVER_COMMAND, brief, change_document, open_document, record_diagnostics, uri_of,
-                         wait_for_diagnostics, write_workspace)
+from lsp_support import (RADICAL, RADICAL_FINDINGS, brief, change_document, client_fixture, open_document, uri_of,
+                         wait_for_diagnostics)
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
-RADICAL = (
-    "geometry cn {\n  C  0.0  0.0  0.0\n  N  0.0  0.0  1.1718\n}\n"
-    "level hf_adz { method = hf  basis = aug-cc-pvdz  reference = restricted }\n"
-    "state radical { geometry = cn  level = hf_adz  charge = 0  multiplicity = 2 }\n"
-)
-EXPECTED = [("restricted-open-shell", 4, 61, 4, 71,
-             "state `radical` has multiplicity 2 (open shell) but level `hf_adz` sets reference = restricted")]
+EXPECTED = RADICAL_FINDINGS
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-robust")
-    write_workspace(root, {})
-    lsp_client.root = root
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-robust")
 
 
 async def symbols_of(client, uri):

@@ -5,12 +5,11 @@ from __future__ import annotations
 import time
 
 import pytest
-import pytest_lsp
 from lsprotocol import types as t
-from pytest_lsp import ClientServerConfig, LanguageClient, client_capabilities
+from pytest_lsp import LanguageClient
 
-from lsp_support import (SERVER_COMMAND, TIMEOUT_S, brief, change_document, open_document, record_diagnostics,
-                         uri_of, wait_for_diagnostics, write_workspace)
+from lsp_support import (TIMEOUT_S, brief, change_document, client_fixture, open_document, uri_of,
+                         wait_for_diagnostics)
 
 pytestmark = pytest.mark.asyncio(loop_scope="module")
 
@@ -20,16 +19,7 @@ USER = ('use "shared.deck"\n'
         "state radical { geometry = cn  level = hf_adz  charge = 0  multiplicity = 2 }\n")
 
 
-@pytest_lsp.fixture(config=ClientServerConfig(server_command=SERVER_COMMAND), scope="module")
-async def client(lsp_client: LanguageClient, tmp_path_factory):
-    root = tmp_path_factory.mktemp("lsp-workspace")
-    write_workspace(root, {"shared.deck": SHARED, "user.deck": USER})
-    lsp_client.root = root
-    record_diagnostics(lsp_client)
-    await lsp_client.initialize_session(t.InitializeParams(
-        capabilities=client_capabilities("neovim@v0.7.0"), root_uri=uri_of(root, "")))
-    yield
-    await lsp_client.shutdown_session()
+client = client_fixture("lsp-workspace", files={"shared.deck": SHARED, "user.deck": USER})
 
 
 async def publication_matching(client, uri: str, after: int, expected, key=brief):

@@ -37,7 +37,7 @@ def test_findings_grouped_by_file_in_order(tmp_path, monkeypatch, capsys):
     section = out.split("#### `batch/no2_typos.deck`")[1].split("####")[0]
     items = [line for line in section.splitlines() if line.startswith("- ")]
     assert items[0].startswith("- **error** line 8:40 `undefined-name`: no level is named `hf_az`")
-    assert items[0].endswith("_(risky fix available)_")
+    assert items[0].endswith("_(safe fix available)_")  # another defined name, clearly the nearest
     assert items[1].startswith("- **error** line 9:57 `unknown-key`")
     assert "compared with the unrestricted run" in out.split("Suppressed findings (1)")[1]
 

@@ -93,6 +93,6 @@ def check(ctx: Context):
                 word.span,
                 f"`{name}` in {where} is neither a basis set of the library nor a basis_set of this deck{hint}",
                 fixes=tuple(
-                    fix(f"Use `{c}`", replace(word.span, as_deck_word(c)), risky=True) for c in close[:1]
+                    fix(f"Use `{c}`", replace(word.span, as_deck_word(c)), risky=True) for c in close
                 ),
             )

@@ -78,5 +78,5 @@ def check(ctx: Context):
             yield ctx.finding(
                 word.span,
                 f"`{word.value}` in {where} is not in the method table{hint}",
-                fixes=tuple(fix(f"Use `{c}`", replace(word.span, c), risky=True) for c in close[:1]),
+                fixes=tuple(fix(f"Use `{c}`", replace(word.span, c), risky=True) for c in close),
             )

@@ -16,12 +16,9 @@ from lsprotocol import types as t
 
 from deckward.grammar.findings import Finding, Fix
 
-from .diagnostics import to_diagnostic
-from .probes import ACTION_KIND as PROBE_ACTION_KIND
-from .probes import probe_action
+from .core import DeckServer, minimal_edit, to_diagnostic
 
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 FIX_ALL_KIND = t.CodeActionKind.SourceFixAll.value + ".deckward"
@@ -61,22 +58,7 @@ def quick_fixes(analysis: "Analysis", start: int, end: int) -> list[t.CodeAction
     return actions
 
 
-def minimal_edit(analysis: "Analysis", new_text: str) -> t.TextEdit:
-    """One edit turning the analysed text into ``new_text``, covering only
-    the part that differs (the cursor and folds elsewhere stay put)."""
-    old = analysis.text
-    prefix = 0
-    limit = min(len(old), len(new_text))
-    while prefix < limit and old[prefix] == new_text[prefix]:
-        prefix += 1
-    suffix = 0
-    while suffix < limit - prefix and old[len(old) - 1 - suffix] == new_text[len(new_text) - 1 - suffix]:
-        suffix += 1
-    return t.TextEdit(range=analysis.positions.range(prefix, len(old) - suffix),
-                      new_text=new_text[prefix : len(new_text) - suffix])
-
-
-def fix_all(server: "DeckServer", analysis: "Analysis"):
+def fix_all(server: DeckServer, analysis: "Analysis"):
     """The text with every safe fix applied (None when nothing changes)."""
     from deckward.rules import fixes
 
@@ -95,33 +77,38 @@ def _wants(only, kind: str) -> bool:
     return any(kind == k or kind.startswith(k + ".") for k in names)
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(
-        t.TEXT_DOCUMENT_CODE_ACTION,
-        t.CodeActionOptions(code_action_kinds=[t.CodeActionKind.QuickFix, t.CodeActionKind.SourceFixAll, FIX_ALL_KIND,
-                                               PROBE_ACTION_KIND]),
-    )
-    async def code_action(ls: "DeckServer", params: t.CodeActionParams):
-        analysis = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        only = params.context.only if params.context else None
-        actions: list[t.CodeAction] = []
-        if _wants(only, t.CodeActionKind.QuickFix.value):
-            start = analysis.positions.offset(params.range.start)
-            end = analysis.positions.offset(params.range.end)
-            actions.extend(quick_fixes(analysis, start, end))
-        if _wants(only, FIX_ALL_KIND):
-            loop = asyncio.get_running_loop()
-            outcome = await loop.run_in_executor(ls.executor, fix_all, ls, analysis)
-            if outcome is not None and ls.is_current(analysis.uri, analysis):
-                n = outcome.count
-                actions.append(t.CodeAction(
-                    title=f"{FIX_ALL_TITLE} ({n} fix{'es' * (n != 1)})",
-                    kind=FIX_ALL_KIND,
-                    edit=t.WorkspaceEdit(changes={analysis.uri: [minimal_edit(analysis, outcome.text)]}),
-                ))
-        if only and _wants(only, PROBE_ACTION_KIND) or not only and params.context and not params.context.diagnostics:
-            # offered when asked for source actions, or in the general menu away from a finding
-            actions.append(probe_action(analysis.uri))
-        return actions
+async def code_action(ls: DeckServer, params: t.CodeActionParams):
+    analysis = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    only = params.context.only if params.context else None
+    actions: list[t.CodeAction] = []
+    if _wants(only, t.CodeActionKind.QuickFix.value):
+        start = analysis.positions.offset(params.range.start)
+        end = analysis.positions.offset(params.range.end)
+        actions.extend(quick_fixes(analysis, start, end))
+    if _wants(only, FIX_ALL_KIND):
+        loop = asyncio.get_running_loop()
+        outcome = await loop.run_in_executor(ls.executor, fix_all, ls, analysis)
+        if outcome is not None and ls.is_current(analysis.uri, analysis):
+            n = outcome.count
+            actions.append(t.CodeAction(
+                title=f"{FIX_ALL_TITLE} ({n} fix{'es' * (n != 1)})",
+                kind=FIX_ALL_KIND,
+                edit=t.WorkspaceEdit(changes={analysis.uri: [minimal_edit(analysis, outcome.text)]}),
+            ))
+    general_menu = not only and params.context and not params.context.diagnostics
+    for kind, build in ls.source_actions:
+        # offered when asked for, or in the general menu away from a finding
+        if (only and _wants(only, kind)) or general_menu:
+            actions.append(build(analysis.uri))
+    return actions
+
+
+def _options(server: DeckServer) -> t.CodeActionOptions:
+    """The kinds offered: quick fixes, fix-all and the source actions other features contribute."""
+    kinds = [t.CodeActionKind.QuickFix, t.CodeActionKind.SourceFixAll, FIX_ALL_KIND]
+    return t.CodeActionOptions(code_action_kinds=kinds + [kind for kind, _ in server.source_actions])
+
+
+FEATURES = [(t.TEXT_DOCUMENT_CODE_ACTION, _options, code_action)]

@@ -23,10 +23,10 @@ from deckward.grammar.build import KEYS
 from deckward.grammar.resolve import Workspace
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
+from .core import DeckServer
 from .geometry_files import file_items
 
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 _TOKEN = re.compile(
@@ -35,6 +35,16 @@ _TOKEN = re.compile(
       |(?P<other>.)""",
     re.VERBOSE | re.IGNORECASE | re.DOTALL,
 )
+# A basis or method word (6-31+g*, ccsd(t), 6-31g(d,p)): commas only inside parentheses.
+_WIDE_WORD = re.compile(r"(?:[A-Za-z0-9+\-*._')]+|\([A-Za-z0-9+\-*._',]*\)?)+")
+_NAME_WORD = re.compile(r"[A-Za-z0-9_.'][A-Za-z0-9_+\-*.']*")
+_STRING = re.compile(r'"(?:[^"\\\n]|\\.)*"?')
+_CLOSED_STRING = re.compile(r'"(?:[^"\\\n]|\\.)*"')
+# Keys whose value is a basis or method word.
+WORD_KEYS = frozenset({"method", "basis", "from"})
+# Typing one of these opens a place where a completion is useful (a value, an
+# argument, a map entry); a space does not, or keywords pop up in comments.
+TRIGGER_CHARACTERS = ["=", "(", ",", ":"]
 STATEMENT_ORDER = ("study", "geometry", "basis_set", "level", "state", "derive", "use")
 ENUMS = {
     "goal": m.GOALS,
@@ -46,6 +56,7 @@ ENUMS = {
     "frequencies": ("true", "false"),
 }
 ORBITALS = ("homo", "lumo", "homo-1", "lumo+1")
+SHELL_LETTERS = ("s", "p", "d", "f", "g", "h", "i")
 # Tokens after which a statement keyword is a name, not a new statement.
 _CONTINUATIONS = frozenset(STATEMENT_KEYWORDS | {"=", "(", ",", ":", "+", "-", "*", "/", "as", "in"})
 
@@ -60,28 +71,100 @@ class Block:
 
 @dataclass
 class Context:
-    what: str  # statement | key | value | map_key | map_value | expression | state | orbital | spin | quantity | unit | none
+    what: str  # statement | key | value | map_key | map_value | expression | state | orbital | spin | quantity | unit | shell | none
     block: Optional[Block] = None
     key: Optional[str] = None
     statement: Optional[str] = None  # the statement keyword around the cursor
     name: Optional[str] = None  # its name
+    # The word being completed: offsets of its start and end in the text (the
+    # end may lie after the cursor); ``quoted`` when it is a string started
+    # with `"`.  A completion replaces all of it.
+    start: int = 0
+    end: int = 0
+    quoted: bool = False
+    typed: str = ""  # the part of the word before the cursor
+
+
+@dataclass
+class _Token:
+    text: str
+    kind: str
+    start: int
+    end: int
+
+
+def _tokens(before: str) -> list[_Token]:
+    """The tokens of ``before`` (whitespace dropped).  After ``method =``,
+    ``basis =``, ``from =`` and a map's ``:`` a whole basis or method word
+    is one token, parentheses and commas included."""
+    out: list[_Token] = []
+    pos = 0
+    while pos < len(before):
+        wide = (out and (out[-1].text == ":" or (out[-1].text == "=" and len(out) > 1
+                                                    and out[-2].text.lower() in WORD_KEYS)))
+        if wide:
+            mt = _WIDE_WORD.match(before, pos)
+            if mt:
+                out.append(_Token(mt.group(), "wide", pos, mt.end()))
+                pos = mt.end()
+                continue
+        mt = _TOKEN.match(before, pos)
+        if mt.lastgroup != "ws":
+            out.append(_Token(mt.group(), mt.lastgroup, pos, mt.end()))
+        pos = mt.end()
+    return out
+
+
+def _in_word_value(tokens: list[_Token]) -> bool:
+    """The next token is a basis or method word."""
+    return bool(tokens) and (tokens[-1].text == ":" or (
+        tokens[-1].text == "=" and len(tokens) > 1 and tokens[-2].text.lower() in WORD_KEYS))
 
 
 def context_at(text: str, offset: int) -> Context:
-    """What the cursor at ``offset`` expects (the word being typed excluded)."""
+    """What the cursor at ``offset`` expects, and the word it is in."""
     before = text[:offset]
-    partial = re.search(r"(?:[A-Za-z0-9_.'][A-Za-z0-9_+\-*.']*)?$", before)
-    cut = partial.start() if partial else offset
+    tokens = _tokens(before)
+    start, end, quoted = offset, offset, False
+    last_tok = tokens[-1] if tokens else None
+    if last_tok is not None and last_tok.end == offset:
+        if last_tok.kind == "comment":
+            return Context("none", start=offset, end=offset)
+        if last_tok.kind == "string" and not _CLOSED_STRING.fullmatch(last_tok.text):
+            if not _in_word_value(tokens[:-1]):
+                return Context("none", start=offset, end=offset)  # a title, a path, a note
+            start, quoted = last_tok.start, True
+            end = _STRING.match(text, start).end()
+            tokens = tokens[:-1]
+        elif last_tok.kind in ("word", "wide"):
+            start = last_tok.start
+            pattern = _WIDE_WORD if last_tok.kind == "wide" else _NAME_WORD
+            end = max(offset, pattern.match(text, start).end())
+            tokens = tokens[:-1]
+    if start == offset:  # the cursor may sit before a word: replace it too
+        pattern = _WIDE_WORD if _in_word_value(tokens) else _NAME_WORD
+        mt = pattern.match(text, offset)
+        end = mt.end() if mt else offset
+    ctx = _context(tokens, text[:start])
+    ctx.start, ctx.end, ctx.quoted, ctx.typed = start, end, quoted, text[start:offset].lstrip('"')
+    if quoted and not (ctx.what == "map_value" or (ctx.what == "value" and ctx.key in WORD_KEYS)):
+        return Context("none", start=offset, end=offset)
+    return ctx
+
+
+def _line_is_blank_before(before: str) -> bool:
+    return before[before.rfind("\n") + 1:].strip() == ""
+
+
+def _context(toks: list[_Token], before: str) -> Context:
     tokens: list[str] = []
     stack: list[Block] = []
     statement: Optional[str] = None
     name: Optional[str] = None
     derive_eq = False
-    for mt in _TOKEN.finditer(before[:cut]):
-        kind = mt.lastgroup
-        if kind in ("ws", "comment"):
-            continue
-        tok = mt.group()
+    for tk in toks:
+        kind = tk.kind
+        tok = tk.text
         low = tok.lower()
         prev = tokens[-1].lower() if tokens else None
         if kind == "word" and not stack and low in STATEMENT_KEYWORDS and prev not in _CONTINUATIONS:
@@ -110,13 +193,19 @@ def context_at(text: str, offset: int) -> Context:
         if block.kind == "map":
             if last == ":":
                 return Context("map_value", block, block.key, statement, name)
-            return Context("map_key", block, block.key, statement, name)
+            if last in ("{", ",") or (len(tokens) > 1 and tokens[-2] == ":"):
+                return Context("map_key", block, block.key, statement, name)
+            return Context("none", block, block.key, statement, name)
         if last == "=":
             return Context("value", block, tokens[-2].lower(), statement, name)
         if last == "optimize(" or (last and last.startswith("optimize")):
             return Context("value", block, "geometry", statement, name)
-        if block.kind == "basis_set" and last == "add":
-            return Context("map_key", block, None, statement, name)
+        if block.kind == "geometry" and not _line_is_blank_before(before):
+            return Context("none", block, None, statement, name)  # an atom line: coordinates follow the symbol
+        if block.kind == "basis_set":
+            shell = _after_add(tokens)
+            if shell is not None:
+                return Context(shell, block, None, statement, name)
         return Context("key", block, None, statement, name)
     if statement == "derive":
         if not derive_eq:
@@ -155,6 +244,13 @@ def context_at(text: str, offset: int) -> Context:
     return Context("none", statement=statement, name=name)
 
 
+def _after_add(tokens: list[str]) -> Optional[str]:
+    """Inside ``add ELEMENT SHELL EXPONENT``: what comes next (None when the
+    cursor is not inside one)."""
+    for back in range(1, 4):
+        if len(tokens) >= back and tokens[-back].lower() == "add":
+            return ("map_key", "shell", "none")[back - 1]
+    return None
 
 
 # ------------------------------------------------------------------ items
@@ -189,6 +285,9 @@ def _basis_items(ws: Workspace, ctx: Context, only: Optional[str] = None) -> lis
     names = basis_library.covering(symbols) if symbols else basis_library.all_names()
     items = [_item(n, t.CompletionItemKind.Module, "basis_set of this deck", sort="0" + n)
              for n in _names(ws, "basis_set") if n != ctx.name]
+    if "(" in ctx.typed:  # the polarisation written out: 6-31g(d,p) for 6-31g**
+        names = list(names) + [n for n in basis_library.all_names() if "(" in n and n not in names and (
+            (info := basis_library.lookup(n)) is not None and (not symbols or symbols <= info.elements))]
     for n in names:
         info = basis_library.lookup(n)
         detail = f"{info.zeta} zeta, {info.family}" if info is not None else None
@@ -257,6 +356,8 @@ def items_for(ctx: Context, ws: Optional[Workspace]) -> list[t.CompletionItem]:
         if ws is None:
             return []
         return [_item(n, K.Reference, "state") for n in _names(ws, "state")]
+    if what == "shell":
+        return [_item(letter, K.EnumMember, "shell angular momentum") for letter in SHELL_LETTERS]
     if what == "orbital":
         return [_item(o, K.EnumMember, "orbital") for o in ORBITALS]
     if what == "spin":
@@ -268,13 +369,37 @@ def items_for(ctx: Context, ws: Optional[Workspace]) -> list[t.CompletionItem]:
     return []
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_COMPLETION,
-                    t.CompletionOptions(trigger_characters=["=", "(", ",", ":", " "]))
-    async def complete(ls: "DeckServer", params: t.CompletionParams):
-        analysis: Optional["Analysis"] = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        offset = analysis.positions.offset(params.position)
-        ctx = context_at(analysis.text, offset)
-        return t.CompletionList(is_incomplete=False, items=items_for(ctx, analysis.workspace))
+def with_edits(items: list[t.CompletionItem], ctx: Context, text: str, positions) -> list[t.CompletionItem]:
+    """Give every item a text edit over the whole word being completed, so
+    that a client never splits a basis word at `-` or `(`: the label (or its
+    insert text), quoted where the deck language needs quotes, after a space
+    when the cursor sits right after `=` or `:`."""
+    from deckward.rules.catalogue.unknown_basis import as_deck_word
+
+    word_value = ctx.what == "map_value" or (ctx.what == "value" and ctx.key in WORD_KEYS)
+    spaced = ctx.start > 0 and text[ctx.start - 1] in "=:"
+    rng = positions.range(ctx.start, ctx.end)
+    for item in items:
+        new = item.insert_text or item.label
+        if ctx.quoted:
+            new = '"' + new.replace("\\", "\\\\").replace('"', '\\"') + '"'
+        elif word_value:
+            new = as_deck_word(new)
+        if new != item.label and not item.filter_text:
+            item.filter_text = ('"' + item.label) if ctx.quoted else item.label
+        item.insert_text = None
+        item.text_edit = t.TextEdit(range=rng, new_text=(" " if spaced else "") + new)
+    return items
+
+
+async def complete(ls: DeckServer, params: t.CompletionParams):
+    analysis: Optional["Analysis"] = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    offset = analysis.positions.offset(params.position)
+    ctx = context_at(analysis.text, offset)
+    items = with_edits(items_for(ctx, analysis.workspace), ctx, analysis.text, analysis.positions)
+    return t.CompletionList(is_incomplete=False, items=items)
+
+
+FEATURES = [(t.TEXT_DOCUMENT_COMPLETION, t.CompletionOptions(trigger_characters=TRIGGER_CHARACTERS), complete)]

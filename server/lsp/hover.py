@@ -1,12 +1,16 @@
-"""Hover: what deckward knows about the thing under the cursor.
+"""Hover: what deckward knows about the thing under the cursor, facts first.
 
-- a finding: its message, then the rule's rationale and references;
 - a basis word: per element of the geometries it is used for, the library's
   functions per angular momentum, the most diffuse s and p exponents and
   whether they count as diffuse (``deckward.rules.diffuse``);
-- a state: its electron count, charge, multiplicity and reference;
+- a state: its electron count, charge, multiplicity, reference and level;
 - a method word: its family;
-- a geometry or level name: a one-line summary.
+- a geometry or level name: a one-line summary;
+- then one line per finding under the cursor, linked to the rule's
+  documentation (the rationale and references live there, not on screen).
+
+Everything taken from the deck or a message is escaped for Markdown
+(``markdown.py``), so `6-31+G*` shows as written.
 """
 from __future__ import annotations
 
@@ -17,11 +21,10 @@ from lsprotocol import types as t
 from deckward.grammar import model as m
 from deckward.grammar.resolve import Workspace
 
-from .diagnostics import rule_url
-from .navigation import target_at
+from .core import DeckServer, rule_url, target_at
+from .markdown import code, escape, link
 
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 _L = "spdfghi"
@@ -30,20 +33,10 @@ _L = "spdfghi"
 # ---------------------------------------------------------------- findings
 
 
-def finding_text(finding) -> str:
-    from deckward.rules.registry import get
-
-    lines = [f"**{finding.rule}** ({finding.severity.value}): {finding.message}"]
-    rule = get(finding.rule)
-    if rule is not None:
-        info = rule.info
-        lines += ["", f"*{info.title}*", "", info.why]
-        if info.references:
-            lines += ["", "References:"] + [f"- {r}" for r in info.references]
-    if finding.fixes:
-        lines += ["", "Fixes: " + "; ".join(f.title + ("" if f.is_safe else " (risky)") for f in finding.fixes)]
-    lines += ["", f"[Documentation of {finding.rule}]({rule_url(finding.rule)})"]
-    return "\n".join(lines)
+def finding_line(finding) -> str:
+    """``- **rule** (severity): message (documentation)``, escaped."""
+    return (f"- **{escape(finding.rule)}** ({finding.severity.value}): {escape(finding.message)} "
+            f"({link('documentation', rule_url(finding.rule))})")
 
 
 # ------------------------------------------------------------------- basis
@@ -109,12 +102,13 @@ def basis_text(ws: Workspace, word: m.Located, owner, restriction, spec) -> str:
     deck_set = ws.basis_set(word.value)
     if info is None and deck_set is None:
         close = basis_library.closest(word.value)
-        hint = f" Closest library names: {', '.join(close)}." if close else ""
-        return f"**{word.value}**: not a basis set of the library nor of this deck.{hint}"
+        hint = f" Closest library names: {', '.join(code(c) for c in close)}." if close else ""
+        return f"{code(word.value)}: not a basis set of the library nor of this deck.{hint}"
     if deck_set is not None:
-        head = f"**{word.value}**: basis_set of this deck"
+        head = f"{code(word.value)}: basis\\_set of this deck"
     else:
-        head = f"**{info.name}**: {info.zeta} zeta, family {info.family}" + (", core-valence" if info.core_valence else "")
+        head = f"{code(info.name)}: {escape(info.zeta)} zeta, family {escape(info.family)}" + (
+            ", core-valence" if info.core_valence else "")
     symbols = _symbols(_geometries_for(ws, owner), restriction)
     if not symbols:
         return head + "\n\nNo geometry uses it yet."
@@ -134,7 +128,7 @@ def basis_text(ws: Workspace, word: m.Located, owner, restriction, spec) -> str:
                     counts.append(0)
                 counts[shell.l] += 1
         if smallest is None:
-            rows.append(f"| {sym} | not in the library | | | |")
+            rows.append(f"| {escape(sym)} | not in the library | | | |")
             continue
         s = f"{smallest[0][0]:.4g}" if smallest and smallest[0] else "-"
         p = f"{smallest[1][0]:.4g}" if len(smallest) > 1 and smallest[1] else "-"
@@ -143,7 +137,7 @@ def basis_text(ws: Workspace, word: m.Located, owner, restriction, spec) -> str:
             verdict = ("yes" if v.is_diffuse else "no") + f" (threshold {v.threshold:.3f})"
         except ValueError:
             verdict = "unknown"
-        rows.append(f"| {sym} | {_functions(counts or [])} | {s} | {p} | {verdict} |")
+        rows.append(f"| {escape(sym)} | {_functions(counts or [])} | {s} | {p} | {verdict} |")
     return head + "\n\n" + "\n".join(rows) + "\n\nExponents in bohr⁻²; diffuse by deckward's criterion (docs/diffuse-criterion.md)."
 
 
@@ -157,17 +151,21 @@ def state_text(ws: Workspace, name: str) -> Optional[str]:
     if rs is None:
         return None
     electrons = deck_facts.electron_count(rs)
-    lines = [f"**state {name}**", ""]
+    lines = [f"**state** {code(name)}", ""]
     lines.append(f"- electrons: {electrons if electrons is not None else 'unknown'}"
                  + (f" ({'even' if electrons % 2 == 0 else 'odd'})" if electrons is not None else ""))
     lines.append(f"- charge: {rs.charge}")
     lines.append(f"- multiplicity: {rs.multiplicity if rs.multiplicity is not None else 'not set'}")
     ref = rs.reference + ("" if rs.settings.reference is not None else " (default)")
-    lines.append(f"- reference: {ref}")
+    lines.append(f"- reference: {escape(ref)}")
+    if rs.level is not None:
+        lines.append(f"- level: {code(rs.level.name.value)}")
     if rs.settings.method is not None:
-        lines.append(f"- method: {rs.settings.method.value}")
+        lines.append(f"- method: {code(rs.settings.method.value)}")
+    if rs.settings.basis is not None and rs.settings.basis.default is not None:
+        lines.append(f"- basis: {code(rs.settings.basis.default.value)}")
     if rs.geometry is not None:
-        lines.append(f"- geometry: {rs.geometry.name.value}" + (" (optimized)" if rs.optimize else ""))
+        lines.append(f"- geometry: {code(rs.geometry.name.value)}" + (" (optimized)" if rs.optimize else ""))
     return "\n".join(lines)
 
 
@@ -177,12 +175,13 @@ def method_text(word: str) -> str:
     info = methods.lookup(word)
     if info is None:
         close = methods.closest(word)
-        return f"**{word}**: not a method deckward knows." + (f" Closest: {', '.join(close)}." if close else "")
+        return f"{code(word)}: not a method deckward knows." + (
+            f" Closest: {', '.join(code(c) for c in close)}." if close else "")
     family = {"hf": "Hartree-Fock", "dft": "density functional theory", "mp2": "second-order perturbation theory",
               "cc": "coupled cluster", "ci": "configuration interaction"}.get(info.family, info.family)
     extra = f", {info.dft_class}" if info.dft_class else ""
     corr = "correlated wavefunction method" if info.correlated else "not a correlated wavefunction method"
-    return f"**{info.name}**: family {info.family} ({family}{extra}); {corr}"
+    return f"{code(info.name)}: family {escape(info.family)} ({escape(family + extra)}); {corr}"
 
 
 def definition_text(ws: Workspace, kind: str, node) -> Optional[str]:
@@ -194,47 +193,55 @@ def definition_text(ws: Workspace, kind: str, node) -> Optional[str]:
                 counts[sym] = counts.get(sym, 0) + 1
         formula = "".join(f"{s}{n if n > 1 else ''}" for s, n in counts.items()) or "no atoms"
         ghosts = sum(1 for a in node.atoms if a.ghost)
-        return f"**geometry {node.name.value}**: {formula}, {len(node.atoms)} atoms ({node.unit})" + (
+        return f"**geometry** {code(node.name.value)}: {escape(formula)}, {len(node.atoms)} atoms ({escape(node.unit)})" + (
             f", {ghosts} ghost" if ghosts else "")
     if kind == "level":
         s = node.settings
-        parts = [f"method {s.method.value}" if s.method else "no method",
-                 f"basis {s.basis.default.value}" if s.basis and s.basis.default else "basis (per element)" if s.basis else "no basis",
-                 f"reference {s.reference.value}" if s.reference else "reference by multiplicity"]
-        return f"**level {node.name.value}**: " + ", ".join(parts)
+        parts = [f"method {code(s.method.value)}" if s.method else "no method",
+                 f"basis {code(s.basis.default.value)}" if s.basis and s.basis.default else "basis (per element)" if s.basis else "no basis",
+                 f"reference {escape(s.reference.value)}" if s.reference else "reference by multiplicity"]
+        return f"**level** {code(node.name.value)}: " + ", ".join(parts)
     return None
 
 
-def hover_text(analysis: "Analysis", offset: int) -> Optional[str]:
+def facts_text(analysis: "Analysis", offset: int) -> Optional[str]:
+    """What deckward knows about the name or word at ``offset``."""
     ws = analysis.workspace
-    parts = [finding_text(f) for f in analysis.own_findings if f.span.contains(offset) and f.span.start != f.span.end]
     deck = ws.root.deck
     hit = target_at(ws, analysis.path, offset)
     if hit is not None and hit[1] is not None:
         d = hit[1]
-        text = state_text(ws, d.name.value) if d.kind == "state" else definition_text(ws, d.kind, d.node)
-        if text:
-            parts.append(text)
-    else:
-        for word, owner, restriction, spec in _basis_words(deck):
-            if word.span.contains(offset):
-                parts.append(basis_text(ws, word, owner, restriction, spec))
-                break
-        else:
-            for node in list(deck.levels) + list(deck.states):
-                settings = node.settings if isinstance(node, m.Level) else node.overrides
-                if settings.method is not None and settings.method.span.contains(offset):
-                    parts.append(method_text(settings.method.value))
+        return state_text(ws, d.name.value) if d.kind == "state" else definition_text(ws, d.kind, d.node)
+    for word, owner, restriction, spec in _basis_words(deck):
+        if word.span.contains(offset):
+            return basis_text(ws, word, owner, restriction, spec)
+    for node in list(deck.levels) + list(deck.states):
+        settings = node.settings if isinstance(node, m.Level) else node.overrides
+        if settings.method is not None and settings.method.span.contains(offset):
+            return method_text(settings.method.value)
+    return None
+
+
+def hover_text(analysis: "Analysis", offset: int) -> Optional[str]:
+    """The facts first, then one line per finding under the cursor."""
+    parts = []
+    facts = facts_text(analysis, offset)
+    if facts:
+        parts.append(facts)
+    lines = [finding_line(f) for f in analysis.own_findings if f.span.contains(offset) and f.span.start != f.span.end]
+    if lines:
+        parts.append("\n".join(lines))
     return "\n\n---\n\n".join(parts) if parts else None
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_HOVER)
-    async def hover(ls: "DeckServer", params: t.HoverParams):
-        analysis = await ls.analysis(params.text_document.uri)
-        if analysis is None:
-            return None
-        text = hover_text(analysis, analysis.positions.offset(params.position))
-        if text is None:
-            return None
-        return t.Hover(contents=t.MarkupContent(kind=t.MarkupKind.Markdown, value=text))
+async def hover(ls: DeckServer, params: t.HoverParams):
+    analysis = await ls.analysis(params.text_document.uri)
+    if analysis is None:
+        return None
+    text = hover_text(analysis, analysis.positions.offset(params.position))
+    if text is None:
+        return None
+    return t.Hover(contents=t.MarkupContent(kind=t.MarkupKind.Markdown, value=text))
+
+
+FEATURES = [(t.TEXT_DOCUMENT_HOVER, None, hover)]

@@ -20,12 +20,12 @@ from deckward.grammar import model as m
 from deckward.grammar.resolve import Definition, Workspace, resolve
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
+from .core import DeckServer, target_at
 from .geometry_files import file_location
 from .positions import PositionMap
 from .workspace import path_to_uri, uri_to_path
 
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 MAX_WORKSPACE_DECKS = 500
@@ -45,17 +45,6 @@ DefKey = tuple[str, int]
 
 def def_key(d: Definition) -> DefKey:
     return (os.path.abspath(d.path), d.name.span.start)
-
-
-def target_at(ws: Workspace, path: str, offset: int) -> Optional[tuple[m.Located, Optional[Definition]]]:
-    """The name under ``offset`` in ``path``: (the name, what it refers to)."""
-    for d in ws.definitions.values():
-        if d.path == path and d.name.span.contains(offset):
-            return d.name, d
-    for r in ws.references:
-        if r.name.span.path == path and r.name.span.contains(offset):
-            return r.name, r.target
-    return None
 
 
 # ---------------------------------------------------------------- outline
@@ -106,7 +95,7 @@ def document_symbols(analysis: "Analysis") -> list[t.DocumentSymbol]:
 # ------------------------------------------------------------- references
 
 
-def workspace_decks(server: "DeckServer", analysis: "Analysis") -> list[str]:
+def workspace_decks(server: DeckServer, analysis: "Analysis") -> list[str]:
     """Deck files that may refer to names of this document: the open ones
     and those below the workspace root."""
     paths = [uri_to_path(u) for u in server.workspace.text_documents if u.endswith(".deck")]
@@ -128,7 +117,7 @@ def workspace_decks(server: "DeckServer", analysis: "Analysis") -> list[str]:
     return out
 
 
-def references_of(server: "DeckServer", analysis: "Analysis", key: DefKey,
+def references_of(server: DeckServer, analysis: "Analysis", key: DefKey,
                   include_declaration: bool) -> list[tuple[str, m.Located, PositionMap]]:
     """Every (path, name, position map) that is ``key``'s definition or a
     use of it, across the workspace's decks (runs on the worker thread)."""
@@ -184,59 +173,67 @@ def check_new_name(new_name: str, kind: str, workspaces: Iterable[Workspace], ol
                 f"`{new_name}` is already the name of a {other.kind} ({os.path.basename(other.path)} line {other.name.span.line})")
 
 
-def register(server: "DeckServer") -> None:
-    @server.feature(t.TEXT_DOCUMENT_DOCUMENT_SYMBOL)
-    async def symbols(ls: "DeckServer", params: t.DocumentSymbolParams):
-        analysis = await ls.analysis(params.text_document.uri)
-        return document_symbols(analysis) if analysis is not None else None
+async def symbols(ls: DeckServer, params: t.DocumentSymbolParams):
+    analysis = await ls.analysis(params.text_document.uri)
+    return document_symbols(analysis) if analysis is not None else None
 
-    async def locate(ls: "DeckServer", uri: str, position: t.Position):
-        analysis = await ls.analysis(uri)
-        if analysis is None:
-            return None, None
-        return analysis, target_at(analysis.workspace, analysis.path, analysis.positions.offset(position))
 
-    @server.feature(t.TEXT_DOCUMENT_DEFINITION)
-    async def definition(ls: "DeckServer", params: t.DefinitionParams):
-        analysis, hit = await locate(ls, params.text_document.uri, params.position)
-        if analysis is not None and (xyz := file_location(analysis.workspace, analysis.path,
-                                                          analysis.positions.offset(params.position))):
-            return xyz
-        if not hit or hit[1] is None:
-            return None
-        d = hit[1]
-        return _location(d.path, d.name, analysis.positions_for(d.path) or analysis.positions)
+async def locate(ls: DeckServer, uri: str, position: t.Position):
+    analysis = await ls.analysis(uri)
+    if analysis is None:
+        return None, None
+    return analysis, target_at(analysis.workspace, analysis.path, analysis.positions.offset(position))
 
-    @server.feature(t.TEXT_DOCUMENT_REFERENCES)
-    async def references(ls: "DeckServer", params: t.ReferenceParams):
-        analysis, hit = await locate(ls, params.text_document.uri, params.position)
-        if not hit or hit[1] is None:
-            return None
-        loop = asyncio.get_running_loop()
-        found = await loop.run_in_executor(ls.executor, references_of, ls, analysis, def_key(hit[1]),
-                                           params.context.include_declaration)
-        return [_location(p, name, pos) for p, name, pos in found]
 
-    @server.feature(t.TEXT_DOCUMENT_PREPARE_RENAME)
-    async def prepare_rename(ls: "DeckServer", params: t.PrepareRenameParams):
-        analysis, hit = await locate(ls, params.text_document.uri, params.position)
-        if not hit or hit[1] is None:
-            return None
-        name = hit[0]
-        return t.PrepareRenamePlaceholder(range=analysis.positions.range(name.span.start, name.span.end),
-                                          placeholder=name.value)
+async def definition(ls: DeckServer, params: t.DefinitionParams):
+    analysis, hit = await locate(ls, params.text_document.uri, params.position)
+    if analysis is not None and (xyz := file_location(analysis.workspace, analysis.path,
+                                                      analysis.positions.offset(params.position))):
+        return xyz
+    if not hit or hit[1] is None:
+        return None
+    d = hit[1]
+    return _location(d.path, d.name, analysis.positions_for(d.path) or analysis.positions)
 
-    @server.feature(t.TEXT_DOCUMENT_RENAME, t.RenameOptions(prepare_provider=True))
-    async def rename(ls: "DeckServer", params: t.RenameParams):
-        analysis, hit = await locate(ls, params.text_document.uri, params.position)
-        if not hit or hit[1] is None:
-            return None
-        target = hit[1]
-        loop = asyncio.get_running_loop()
-        found = await loop.run_in_executor(ls.executor, references_of, ls, analysis, def_key(target), True)
-        check_new_name(params.new_name, target.kind, [analysis.workspace], target.name.value)
-        changes: dict[str, list[t.TextEdit]] = {}
-        for path, name, pos in found:
-            changes.setdefault(path_to_uri(path), []).append(
-                t.TextEdit(range=pos.range(name.span.start, name.span.end), new_text=params.new_name))
-        return t.WorkspaceEdit(changes=changes)
+
+async def references(ls: DeckServer, params: t.ReferenceParams):
+    analysis, hit = await locate(ls, params.text_document.uri, params.position)
+    if not hit or hit[1] is None:
+        return None
+    loop = asyncio.get_running_loop()
+    found = await loop.run_in_executor(ls.executor, references_of, ls, analysis, def_key(hit[1]),
+                                       params.context.include_declaration)
+    return [_location(p, name, pos) for p, name, pos in found]
+
+
+async def prepare_rename(ls: DeckServer, params: t.PrepareRenameParams):
+    analysis, hit = await locate(ls, params.text_document.uri, params.position)
+    if not hit or hit[1] is None:
+        return None
+    name = hit[0]
+    return t.PrepareRenamePlaceholder(range=analysis.positions.range(name.span.start, name.span.end),
+                                      placeholder=name.value)
+
+
+async def rename(ls: DeckServer, params: t.RenameParams):
+    analysis, hit = await locate(ls, params.text_document.uri, params.position)
+    if not hit or hit[1] is None:
+        return None
+    target = hit[1]
+    loop = asyncio.get_running_loop()
+    found = await loop.run_in_executor(ls.executor, references_of, ls, analysis, def_key(target), True)
+    check_new_name(params.new_name, target.kind, [analysis.workspace], target.name.value)
+    changes: dict[str, list[t.TextEdit]] = {}
+    for path, name, pos in found:
+        changes.setdefault(path_to_uri(path), []).append(
+            t.TextEdit(range=pos.range(name.span.start, name.span.end), new_text=params.new_name))
+    return t.WorkspaceEdit(changes=changes)
+
+
+FEATURES = [
+    (t.TEXT_DOCUMENT_DOCUMENT_SYMBOL, None, symbols),
+    (t.TEXT_DOCUMENT_DEFINITION, None, definition),
+    (t.TEXT_DOCUMENT_REFERENCES, None, references),
+    (t.TEXT_DOCUMENT_PREPARE_RENAME, None, prepare_rename),
+    (t.TEXT_DOCUMENT_RENAME, t.RenameOptions(prepare_provider=True), rename),
+]

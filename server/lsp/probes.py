@@ -3,8 +3,8 @@
 The probes run real Hartree-Fock calculations (seconds to minutes), so the
 server offers them as a source action ("Run the PySCF probes on this
 deck") bound to the ``deckward.runProbes`` command. The command runs one
-probe after another on a worker thread of its own (typing diagnostics keep
-flowing), reports work-done progress, and then publishes the deck's
+probe after another on the server's executor (it has two workers, so
+typing diagnostics keep flowing), reports work-done progress, and then publishes the deck's
 diagnostics with the probe findings added. The findings are kept for that
 exact text: the next edit drops them, and running the command again brings
 them back (the calculations are cached on disk).
@@ -13,38 +13,20 @@ from __future__ import annotations
 
 import asyncio
 import uuid
-from concurrent.futures import ThreadPoolExecutor
-from typing import TYPE_CHECKING, Optional
+from typing import TYPE_CHECKING
 
 from lsprotocol import types as t
 
 from deckward.grammar.findings import Finding
 
+from .core import DeckServer
+
 if TYPE_CHECKING:
-    from .server import DeckServer
     from .workspace import Analysis
 
 COMMAND = "deckward.runProbes"
 ACTION_KIND = "source.deckward.probes"
 ACTION_TITLE = "Run the PySCF probes on this deck (Hartree-Fock; seconds to minutes)"
-
-_executor: Optional[ThreadPoolExecutor] = None
-
-
-def _probe_executor() -> ThreadPoolExecutor:
-    global _executor
-    if _executor is None:
-        _executor = ThreadPoolExecutor(max_workers=1, thread_name_prefix="deckward-probe")
-    return _executor
-
-
-def probe_findings_for(server: "DeckServer", analysis: "Analysis") -> list[Finding]:
-    """Probe findings computed for exactly this text of the document."""
-    kept = server.probe_results.get(analysis.uri)
-    if kept is None or kept[0] != analysis.text:
-        return []
-    return kept[1]
-
 
 def _run_one(analysis: "Analysis", probe_id: str) -> list[Finding]:
     from deckward.rules.engine import check_workspace
@@ -56,7 +38,7 @@ def _run_one(analysis: "Analysis", probe_id: str) -> list[Finding]:
     return [f for f in checked if f.rule == probe_id and f.suppressed is None and f.span.path == analysis.path]
 
 
-async def run_probes_command(server: "DeckServer", uri: str) -> dict:
+async def run_probes_command(server: DeckServer, uri: str) -> dict:
     analysis = await server.analysis(uri)
     if analysis is None:
         return {"findings": 0, "message": "the document is not open"}
@@ -79,11 +61,12 @@ async def run_probes_command(server: "DeckServer", uri: str) -> dict:
             server.work_done_progress.report(token, t.WorkDoneProgressReport(
                 message=probe_id, percentage=int(100 * i / len(ids))))
         try:
-            findings.extend(await loop.run_in_executor(_probe_executor(), _run_one, analysis, probe_id))
+            findings.extend(await loop.run_in_executor(server.executor, _run_one, analysis, probe_id))
         except Exception as e:  # one failing probe must not stop the others or the server
             server.window_log_message(t.LogMessageParams(
                 type=t.MessageType.Warning, message=f"{probe_id} failed: {type(e).__name__}: {e}"))
     server.probe_results[uri] = (analysis.text, findings)
+    server.changed()  # a pulled report must not come back "unchanged"
     summary = f"{len(findings)} probe finding{'s' * (len(findings) != 1)}"
     if progress:
         server.work_done_progress.end(token, t.WorkDoneProgressEnd(message=summary))
@@ -98,7 +81,10 @@ def probe_action(uri: str) -> t.CodeAction:
                         command=t.Command(title=ACTION_TITLE, command=COMMAND, arguments=[uri]))
 
 
-def register(server: "DeckServer") -> None:
-    @server.command(COMMAND)
-    async def run_probes(ls, uri: str):  # pygls reads these annotations: keep them importable
-        return await run_probes_command(ls, uri)
+async def run_probes(ls, uri: str):  # pygls reads these annotations: keep them importable
+    return await run_probes_command(ls, uri)
+
+
+COMMANDS = [(COMMAND, run_probes)]
+SOURCE_ACTIONS = [(ACTION_KIND, probe_action)]
+FEATURES: list = []

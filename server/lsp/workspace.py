@@ -11,9 +11,11 @@ the open decks that use it.
 from __future__ import annotations
 
 import os
+import re
 import threading
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import Optional
+from typing import Callable, Iterator, Optional
 
 from pygls.uris import from_fs_path, to_fs_path
 
@@ -23,6 +25,18 @@ from deckward.rules.config import CONFIG_NAME, Config, find_config, load_config
 from deckward.rules.engine import check_workspace, known_rule_ids
 
 from .positions import UTF16, PositionMap
+
+
+_LONE_SURROGATE = re.compile("[\ud800-\udfff]")
+
+
+def checkable(text: str) -> str:
+    """``text`` with lone surrogates (which JSON allows and no file can hold)
+    replaced by U+FFFD: one code point for one, and one UTF-16 unit for one,
+    so every position stays where it was."""
+    if text.isascii() or not _LONE_SURROGATE.search(text):
+        return text
+    return _LONE_SURROGATE.sub("\ufffd", text)
 
 
 def uri_to_path(uri: str) -> str:
@@ -67,14 +81,41 @@ class Analysis:
         return PositionMap(parsed.index.text, self.positions.encoding, parsed.index)
 
 
+class Buffers(Mapping):
+    """The overlay the ``Loader`` reads: path -> text of an open buffer.
+
+    The text itself stays in pygls' documents (held once); this maps paths
+    to their URIs and reads the document's current text when asked."""
+
+    def __init__(self, documents: Callable[[], Mapping]) -> None:
+        self.documents = documents
+        self.uris: dict[str, str] = {}
+
+    def __getitem__(self, path: str) -> str:
+        doc = self.documents().get(self.uris[path])
+        if doc is None:
+            raise KeyError(path)
+        return checkable(doc.source)
+
+    def __contains__(self, path) -> bool:
+        uri = self.uris.get(path)
+        return uri is not None and uri in self.documents()
+
+    def __iter__(self) -> Iterator[str]:
+        return (p for p in list(self.uris) if p in self)
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self)
+
+
 class DeckWorkspace:
     """Open buffers, configurations and the latest analysis of each buffer.
 
-    Analyses run on one worker thread at a time (``lock``); the overlay is
-    only written from the event loop."""
+    Analyses run on one worker thread at a time (``lock``); which buffers
+    are open is only changed from the event loop."""
 
-    def __init__(self) -> None:
-        self.overlay: dict[str, str] = {}
+    def __init__(self, documents: Callable[[], Mapping] = dict) -> None:
+        self.overlay = Buffers(documents)
         self.loader = Loader(self.overlay)
         self.folders: list[str] = []
         self.encoding = UTF16
@@ -83,12 +124,12 @@ class DeckWorkspace:
         self._configs: dict[str, tuple[tuple, Config]] = {}
 
     # -- buffers ----------------------------------------------------------
-    def set_buffer(self, uri: str, text: str) -> None:
-        self.overlay[uri_to_path(uri)] = text
+    def open_buffer(self, uri: str) -> None:
+        self.overlay.uris[uri_to_path(uri)] = uri
 
     def drop_buffer(self, uri: str) -> None:
         path = uri_to_path(uri)
-        self.overlay.pop(path, None)
+        self.overlay.uris.pop(path, None)
         self.loader.forget(path)
         self.analyses.pop(uri, None)
 
@@ -128,12 +169,13 @@ class DeckWorkspace:
     def analyse(self, uri: str, text: str, version: Optional[int]) -> Analysis:
         """Resolve and check ``text`` as the document ``uri`` (thread-safe)."""
         path = uri_to_path(uri)
+        clean = checkable(text)
         with self.lock:
             config = self.config_for(path)
-            ws = resolve(path, self.loader, self.root_for(path, config), text=text)
+            ws = resolve(path, self.loader, self.root_for(path, config), text=clean)
             findings = check_workspace(ws, config)
             analysis = Analysis(uri, path, version, text, ws, findings, config,
-                                PositionMap(text, self.encoding, ws.root.index))
+                                PositionMap(clean, self.encoding, ws.root.index))
         return analysis
 
     def recheck_text(self, uri: str, text: str) -> list[Finding]:
