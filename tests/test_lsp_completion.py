@@ -123,7 +123,9 @@ async def test_no_completion_in_comments_strings_and_coordinates(client: Languag
     assert await complete(client, text, 3, 5) == []  # after the element symbol
     assert await complete(client, text, 3, 9) == []  # after a coordinate
     at_line_start = await complete(client, text, 4, 0)
-    assert [i.label for i in at_line_start] == ["units"]
+    assert [i.label for i in at_line_start] == ["units"]  # atoms written: no .xyz `file` either
+    empty = await complete(client, "geometry cn {\n  \n}\n", 1, 2)
+    assert [i.label for i in empty] == ["units", "file"]
 
 
 async def test_basis_set_add_line(client: LanguageClient):

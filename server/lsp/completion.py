@@ -85,6 +85,14 @@ class Context:
     typed: str = ""  # the part of the word before the cursor
 
 
+def _is_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
 @dataclass
 class _Token:
     text: str
@@ -186,6 +194,8 @@ def _context(toks: list[_Token], before: str) -> Context:
                 stack[-1].keys.add(tokens[-1].lower())
             if statement == "derive" and not stack:
                 derive_eq = True
+        elif stack and stack[-1].kind == "geometry" and kind == "word" and prev != "=" and _is_number(tok):
+            stack[-1].keys.add("file")  # a geometry with atoms of its own takes no .xyz file
         tokens.append(tok)
     last = tokens[-1].lower() if tokens else None
     if stack:
