@@ -94,6 +94,7 @@ def _energies(report) -> dict:
     return {s["name"]: s["energy"] for s in report.states}
 
 
+@pytest.mark.pyscf
 def test_local_cluster_gives_the_numbers_of_a_local_run(tmp_path, local_cluster, reference):
     ws = workspace(tmp_path, SMALL)
     report = run_workspace(ws, RunCache(str(tmp_path / "cache")), RunOptions(executor=local_cluster))
@@ -122,6 +123,7 @@ def test_threads_and_memory_follow_the_worker(local_cluster):
     assert set(fixed.values()) == {(3, 500)}  # what the run fixed wins
 
 
+@pytest.mark.pyscf
 def test_frequency_job_depends_on_its_optimisation(tmp_path, local_cluster):
     ws = workspace(tmp_path, OPT_FREQ)
     cache = RunCache(str(tmp_path / "cache"))
@@ -137,6 +139,7 @@ def test_frequency_job_depends_on_its_optimisation(tmp_path, local_cluster):
     assert os.path.isfile(os.path.join(cache.folder, report.state("relaxed")["key"] + ".json"))
 
 
+@pytest.mark.pyscf
 def test_worker_killed_mid_state_is_retried_on_another(tmp_path, local_cluster):
     ws = workspace(tmp_path, LONG)
     stream = KillOnStart(local_cluster.client, "slow")
@@ -151,6 +154,7 @@ def test_worker_killed_mid_state_is_retried_on_another(tmp_path, local_cluster):
     local_cluster.client.wait_for_workers(2, timeout=60)  # the nanny restarted it
 
 
+@pytest.mark.pyscf
 def test_worker_deaths_past_the_bound_fail_that_state_only(tmp_path):
     from deckward.rules.runner.dask_executor import DaskExecutor
 
@@ -169,6 +173,7 @@ def test_worker_deaths_past_the_bound_fail_that_state_only(tmp_path):
     assert not d["e_slow"].available and d["e_h"].available
 
 
+@pytest.mark.pyscf
 def test_time_limit_on_a_cluster_fails_the_state_and_keeps_no_result(tmp_path, local_cluster):
     ws = workspace(tmp_path, LONG)
     cache = RunCache(str(tmp_path / "cache"))
@@ -181,6 +186,7 @@ def test_time_limit_on_a_cluster_fails_the_state_and_keeps_no_result(tmp_path, l
     assert report.state("hydrogen")["status"] == "ok" or "time limit" in report.state("hydrogen")["reason"]
 
 
+@pytest.mark.pyscf
 def test_probes_run_on_a_local_cluster(tmp_path):
     deck = write_deck(tmp_path, """geometry he { He 0 0 0 }
 level hf_min { method = hf basis = sto-3g }
@@ -206,6 +212,7 @@ def _deckward(*args, **kw) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "deckward", *args], capture_output=True, text=True, timeout=300, **kw)
 
 
+@pytest.mark.pyscf
 def test_run_against_a_separately_started_scheduler(tmp_path, dask_processes, reference):
     deck = write_deck(tmp_path, SMALL, "acceptors.deck")
     out = tmp_path / "run.json"
@@ -228,6 +235,7 @@ def test_run_against_a_separately_started_scheduler(tmp_path, dask_processes, re
     assert {s["state"] for s in rows["states"]} == set(ref)
 
 
+@pytest.mark.pyscf
 def test_interrupted_client_leaves_no_half_record_and_rerun_computes_the_rest(tmp_path, dask_processes):
     deck = write_deck(tmp_path, LONG, "long.deck")
     cache = tmp_path / "c"

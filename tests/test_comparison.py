@@ -22,6 +22,7 @@ F_DECK = ("geometry f { F 0 0 0 }\nlevel lv { method = hf basis = aug-cc-pvdz }\
           "derive ea as electron_affinity = energy(neutral) - energy(anion) in ev\n")
 
 
+@pytest.mark.pyscf
 def test_run_json_shows_the_experimental_ea_of_fluorine(tmp_path, capsys):
     import jsonschema
     from pyscf import gto, scf
@@ -89,6 +90,7 @@ def test_plain_data_comparison_for_stored_results():
     assert comparison.compare_value("fundamental_gap", 2.0, ["N", "O", "O"]) is None
 
 
+@pytest.mark.pyscf
 def test_review_shows_experiment_beside_probe_numbers_with_the_caution(tmp_path, monkeypatch):
     # F EA with cc-pvdz: the basis-sensitivity probe fires (HF delta-SCF EA
     # changes sign with diffuse functions; check-values section 7 shows the

@@ -31,6 +31,7 @@ def test_ladders_of_the_families():
         ladder_for("6-31g*")
 
 
+@pytest.mark.pyscf
 def test_converge_json_on_the_fluorine_ea_deck(tmp_path, capsys):
     from pyscf import gto, scf
 
@@ -65,6 +66,7 @@ def test_converge_json_on_the_fluorine_ea_deck(tmp_path, capsys):
     assert text.lstrip().startswith("<?xml") and "experiment 3.401 eV" in text and "CBS" in text
 
 
+@pytest.mark.pyscf
 def test_converge_text_and_refusals(tmp_path, capsys):
     deck = write_deck(tmp_path, F_DECK)
     assert main(["converge", deck, "--quiet", "--cache-dir", str(tmp_path / "c")]) == 0

@@ -5,6 +5,8 @@ from __future__ import annotations
 
 import os
 
+import pytest
+
 from runner_helpers import write_deck
 
 from deckward.grammar.resolve import Loader, resolve
@@ -129,6 +131,7 @@ def test_editor_goes_to_the_xyz_file_and_completes_its_path(tmp_path):
     assert [i.label for i in file_items(ws)] == ['"g.xyz"', '"sub/h.xyz"']
 
 
+@pytest.mark.pyscf
 def test_run_writes_optimised_geometries_as_xyz(tmp_path, capsys):
     # H2 at HF/STO-3G relaxes to r = 0.712 A (Szabo & Ostlund, table 3.x,
     # from memory); the file holds the runner's optimised coordinates and

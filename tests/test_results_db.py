@@ -38,6 +38,7 @@ def _run(folder, text, db_path, name="atoms.deck"):
         return ws, run_workspace(ws, RunCache(str(folder / "cache")), database=db)
 
 
+@pytest.mark.pyscf
 def test_a_run_is_recorded_with_its_provenance(tmp_path):
     db_path = tmp_path / "results.sqlite"
     ws, report = _run(tmp_path, H_ATOMS, db_path)
@@ -67,6 +68,7 @@ def test_a_run_is_recorded_with_its_provenance(tmp_path):
     conn.close()
 
 
+@pytest.mark.pyscf
 def test_latest_per_plan_and_the_whole_history(tmp_path):
     db_path = tmp_path / "results.sqlite"
     _run(tmp_path, H_ATOMS, db_path)
@@ -128,6 +130,7 @@ def _deckward(*args, cwd=None):
                           timeout=300)
 
 
+@pytest.mark.pyscf
 def test_results_command_lists_what_run_recorded(tmp_path):
     deck = write_deck(tmp_path, H_ATOMS, "atoms.deck")
     cache = str(tmp_path / "c")
@@ -149,6 +152,7 @@ def test_results_command_lists_what_run_recorded(tmp_path):
     assert sorted(r[2] for r in rows[1:] if r[0] == "derived") == ["e_h", "ie_he"]
 
 
+@pytest.mark.pyscf
 def test_run_names_a_value_that_changed_since_it_was_recorded(tmp_path):
     cache = str(tmp_path / "c")
     deck = write_deck(tmp_path, H_ATOMS, "atoms.deck")
@@ -169,6 +173,7 @@ def test_results_without_a_database_is_one_line(tmp_path):
                                    "(`deckward run` records one)")
 
 
+@pytest.mark.pyscf
 def test_review_report_shows_the_recorded_values(tmp_path):
     deck = write_deck(tmp_path, H_ATOMS, "atoms.deck")
     db = str(tmp_path / "r.sqlite")

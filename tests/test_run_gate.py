@@ -7,6 +7,8 @@ from __future__ import annotations
 import os
 import re
 
+import pytest
+
 from runner_helpers import write_deck
 
 from deckward.server.cli import main
@@ -30,6 +32,7 @@ def test_run_refuses_a_deck_with_error_findings_and_lists_them(tmp_path, capsys)
     assert lines[2:] == ["deckward: the deck has 2 errors and cannot be run (see `deckward check`)"]
 
 
+@pytest.mark.pyscf
 def test_run_prints_the_warnings_check_gives_before_computing(tmp_path, capsys):
     # Water with coordinates in bohr but no units line (O-H 0.9572 A =
     # 1.8088 bohr; geometry from the NIST CCCBDB experimental structure,
@@ -66,6 +69,7 @@ C_DECK = ("geometry c { C 0 0 0 }\nlevel lv { method = hf basis = 6-31g* }\n"
           "derive ea = energy(neutral) - energy(anion) in ev\n")
 
 
+@pytest.mark.pyscf
 def test_probes_show_progress_on_stderr(tmp_path, monkeypatch, capsys):
     # The same lines as `deckward run` prints (standard error is not a
     # terminal here): one when a calculation starts, one when it ends.

@@ -53,6 +53,7 @@ def run_cli(*argv, capsys):
 
 # -- the cost estimate -------------------------------------------------------------
 
+@pytest.mark.pyscf
 @pytest.mark.parametrize("basis", ["sto-3g", "6-31g*", "cc-pvtz", "aug-cc-pvqz", "def2-svp"])
 def test_basis_function_count_equals_pyscf(tmp_path, basis):
     from deckward.rules.runner.pyscf_build import build_mole
@@ -85,6 +86,7 @@ def test_benzene_ccsd_t_in_aug_cc_pvqz_is_refused_before_anything_runs(tmp_path,
     assert not os.path.exists(tmp_path / "c" / "runs") or os.listdir(tmp_path / "c" / "runs") == []
 
 
+@pytest.mark.pyscf
 def test_the_bound_comes_from_deckward_yaml(tmp_path, capsys):
     deck = write_deck(tmp_path, H2)
     (tmp_path / "deckward.yaml").write_text("run:\n  max_basis_functions: 1\n", encoding="utf-8")
@@ -113,6 +115,7 @@ def test_poll_timeout_keeps_limits_below_the_tick():
     assert poll_timeout([10.0], None, now=10.0) == 0.25
 
 
+@pytest.mark.pyscf
 def test_a_time_limit_below_the_tick_stops_the_state(tmp_path, capsys):
     deck = write_deck(tmp_path, BENZENE + "state s { geometry = bz  method = hf  basis = cc-pvdz  multiplicity = 1 }\n"
                                           "derive e = energy(s)\n")
@@ -139,12 +142,14 @@ def start_run(tmp_path, *flags):
     return proc.returncode, out, err
 
 
+@pytest.mark.pyscf
 def test_the_first_ctrl_c_stops_a_run_inside_its_first_scf(tmp_path):
     status, out, err = start_run(tmp_path)
     assert status == -signal.SIGINT  # ended by the signal itself, without waiting for PySCF
     assert out == ""
 
 
+@pytest.mark.pyscf
 def test_ctrl_c_with_worker_processes_prints_one_line_and_no_traceback(tmp_path):
     status, out, err = start_run(tmp_path, "--jobs", "2")
     assert status == 130
@@ -192,6 +197,7 @@ def cached_entry(tmp_path, capsys):
     lambda d: d.pop("scf_energy"),
     lambda d: d.update(n_basis=True),
 ])
+@pytest.mark.pyscf
 def test_an_edited_cache_entry_is_computed_again(tmp_path, capsys, edit):
     deck, entry, first = cached_entry(tmp_path, capsys)
     data = json.loads(entry.read_text(encoding="utf-8"))
@@ -220,6 +226,7 @@ def test_a_cache_folder_that_is_a_file_is_a_usage_error(tmp_path, capsys):
     assert status == 2
 
 
+@pytest.mark.pyscf
 def test_a_full_disk_leaves_the_results_printed_and_a_note(tmp_path, capsys, monkeypatch):
     import errno
 
