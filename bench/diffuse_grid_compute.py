@@ -90,6 +90,13 @@ MP2_BASES = [
 ]
 QUICK = [("hf", "O", "cc-pvdz"), ("hf", "O", "aug-cc-pvdz"), ("hf", "Cl", "def2-qzvp"),
          ("hf", "H", "6-31+g*"), ("hf", "CN", "def2-tzvp"), ("mp2", "F", "aug-cc-pvdz")]
+# Large valence sets without augmentation that earlier versions of the
+# criterion failed on strongly bound anions: computed first.
+PRIORITY = (
+    [("hf", sp, b) for sp in ("Cl", "Br", "S", "SH") for b in ("def2-qzvp", "cc-pvqz", "pcseg-1")]
+    + [("hf", sp, b) for sp in ("CN", "C2H") for b in ("def2-tzvp", "def2-qzvp", "pcseg-2")]
+    + [("hf", sp, "pcseg-2") for sp in ("NO2", "O2", "HCO2")]
+)
 REFERENCE_SET = "aug-cc-pvtz"
 LAYER_GAP = 0.7  # a reference layer must be this much more diffuse (common practice, no source)
 
@@ -259,7 +266,7 @@ def compute(cases, path: str = GRID_FILE, jobs: int = 1, log=print) -> dict:
     """Compute the cases not yet in the file at ``path``, saving after each."""
     data = load_grid(path)
     todo = [c for c in cases if case_key(*c) not in data["cases"]]
-    todo.sort(key=_cost)
+    todo.sort(key=lambda c: (c not in PRIORITY, _cost(c)))
     log(f"{len(cases) - len(todo)} cases cached, {len(todo)} to compute")
     if jobs > 1:
         import multiprocessing
