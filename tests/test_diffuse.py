@@ -336,3 +336,107 @@ def test_electropositive_atoms_in_plain_aug_sets_count_one_layer():
     for word, symbol in (("aug-cc-pvtz", "Si"), ("aug-cc-pvtz", "B"), ("aug-cc-pv5z", "C"), ("aug-cc-pvqz", "S")):
         data = basis_library.element_data(word, symbol)
         assert diffuse_layers(symbol, data.smallest_exponents) == 1, (word, symbol)
+
+
+# ------------------------------------------- the rule on electron-affinity decks
+#
+# Geometries near the neutral radicals' structures (from memory), as in
+# bench/diffuse_grid_compute.py; measured binding energies from
+# rules/reference_data.py.  "Computed" diffuse errors are the Hartree-Fock
+# delta-SCF values of bench/diffuse_grid.json (docs/diffuse-criterion.md).
+
+GEOM = {  # angstrom, from memory
+
+ "Cl": "  Cl 0 0 0\n", "Br": "  Br 0 0 0\n", "S": "  S 0 0 0\n", "H": "  H 0 0 0\n",
+ "SH": "  S 0 0 0\n  H 0 0 1.341\n", "CN": "  C 0 0 0\n  N 0 0 1.172\n",
+ "C2H": "  C 0 0 0\n  C 0 0 1.217\n  H 0 0 -1.047\n",
+ "NO2": "  N 0 0 0\n  O 0 1.0989 0.4653\n  O 0 -1.0989 0.4653\n",
+ "O2": "  O 0 0 0\n  O 0 0 1.207\n",
+ "HCO2": "  C 0 0 0\n  H 0 0 -1.11\n  O 0 1.1327 0.5283\n  O 0 -1.1327 0.5283\n",
+}
+MULT = {"Cl": (2,1), "Br": (2,1), "S": (3,2), "H": (2,1), "SH": (2,1), "CN": (2,1), "C2H": (2,1), "NO2": (2,1), "O2": (3,2), "HCO2": (2,1)}
+def deck(sp, basis, method="hf"):
+    m0, m1 = MULT[sp]
+    return (f'study "ea" {{ goal = electron_affinity }}\ngeometry g {{\n{GEOM[sp]}}}\n'
+            f'level lv {{ method = {method} basis = {basis} reference = unrestricted }}\n'
+            f'state neutral {{ geometry = g level = lv charge = 0 multiplicity = {m0} }}\n'
+            f'state anion {{ geometry = g level = lv charge = -1 multiplicity = {m1} }}\n'
+            'derive ea as electron_affinity = energy(neutral) - energy(anion) in ev\n')
+def rule_findings(sp, basis, method="hf"):
+    from rule_harness import check_text
+
+    fs, _ = check_text(deck(sp, basis, method), select={"anion-lacks-diffuse"})
+    return [f for f in fs if f.rule == "anion-lacks-diffuse"]
+
+
+@pytest.mark.parametrize(
+    "species, basis",
+    [
+        # large valence sets without augmentation, within about 0.1 eV at Hartree-Fock
+        # (computed: Cl def2-QZVP -0.044, cc-pVQZ -0.088, pcseg-1 -0.099; Br def2-QZVP -0.044,
+        # cc-pVQZ -0.031; CN def2-TZVP -0.081, def2-QZVP -0.043, pcseg-2 -0.041; C2H def2-TZVP
+        # -0.096, pcseg-2 -0.038; NO2 pcseg-2 -0.088; O2 pcseg-2 -0.087 eV)
+        ("Cl", "def2-qzvp"), ("Cl", "cc-pvqz"), ("Cl", "pcseg-1"), ("Br", "def2-qzvp"), ("Br", "cc-pvqz"),
+        ("S", "def2-qzvp"), ("S", "cc-pvqz"), ("S", "pcseg-1"), ("SH", "def2-qzvp"), ("SH", "cc-pvqz"),
+        ("SH", "pcseg-1"), ("CN", "def2-tzvp"), ("CN", "def2-qzvp"), ("CN", "pcseg-2"),
+        ("C2H", "def2-tzvp"), ("C2H", "def2-qzvp"), ("C2H", "pcseg-2"), ("NO2", "pcseg-2"),
+        ("O2", "pcseg-2"), ("HCO2", "pcseg-2"),
+    ],
+)
+def test_large_valence_sets_for_strongly_bound_anions_are_no_errors(species, basis):
+    assert [f for f in rule_findings(species, basis) if f.severity.value == "error"] == []
+
+
+def test_a_set_short_even_for_strong_binding_is_an_error():
+    # Br pcseg-1 (p 0.154): computed diffuse error -0.54 eV at Hartree-Fock
+    [f] = rule_findings("Br", "pcseg-1")
+    assert f.severity.value == "error"
+    assert "the set is too tight even for the most strongly bound anions" in f.message
+
+
+@pytest.mark.parametrize("basis, severity", [("cc-pvtz", "warning"), ("6-31g**", "error"), ("6-31+g*", "error")])
+def test_hydride_in_sets_without_a_diffuse_s_on_hydrogen_is_flagged(basis, severity):
+    # computed: H- misses 0.57 eV in cc-pVTZ and 1.72 eV in 6-31G** and 6-31+G*
+    [f] = rule_findings("H", basis)
+    assert f.severity.value == severity
+    assert "s function on H" in f.message
+
+
+@pytest.mark.parametrize("basis", ["aug-cc-pvtz", "6-311++g**", "aug-cc-pvdz"])
+def test_hydride_in_sets_with_a_diffuse_s_on_hydrogen_passes(basis):
+    # computed: within 0.02 eV
+    assert rule_findings("H", basis) == []
+
+
+def test_correlated_method_needs_diffuse_d_where_hartree_fock_does_not():
+    # Cl 6-31+G*: d 0.75 ([BSE]); fine at HF, short of diffuse d for MP2
+    assert rule_findings("Cl", "6-31+g*") == []
+    [f] = rule_findings("Cl", "6-31+g*", "mp2")
+    assert "diffuse polarisation d function on Cl has exponent 0.750" in f.message
+    assert "the extra electron needs with a correlated method" in f.message
+    assert rule_findings("Cl", "aug-cc-pvtz", "mp2") == []
+
+
+def test_species_not_in_the_table_get_a_warning_that_points_to_the_probe():
+    # PCl is not in deckward's table: the conservative 0.75 eV is assumed; aug-cc-pVDZ passes,
+    # cc-pVTZ is a warning (it would nearly do for strongly bound anions), STO-3G an error.
+    text = (
+        'study "ea" { goal = electron_affinity }\ngeometry g {\n  P 0 0 0\n  Cl 0 0 2.0\n}\n'
+        "level lv {{ method = hf basis = {basis} reference = unrestricted }}\n"
+        "state neutral { geometry = g level = lv charge = 0 multiplicity = 3 }\n"
+        "state anion { geometry = g level = lv charge = -1 multiplicity = 2 }\n"
+    )
+    from rule_harness import check_text
+
+    def run(basis):
+        fs, _ = check_text(text.replace("{basis}", basis).replace("{{", "{").replace("}}", "}"),
+                           select={"anion-lacks-diffuse"})
+        return [f for f in fs if f.rule == "anion-lacks-diffuse"]
+
+    assert run("aug-cc-pvdz") == []
+    [warn] = run("cc-pvtz")
+    assert warn.severity.value == "warning"
+    assert "the species is not in deckward's table, so a binding energy of 0.75 eV is assumed" in warn.message
+    assert warn.message.endswith("`deckward probe` measures how much the electron affinity changes with diffuse functions")
+    [err] = run("sto-3g")
+    assert err.severity.value == "error"
