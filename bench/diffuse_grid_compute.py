@@ -97,6 +97,18 @@ PRIORITY = (
     + [("hf", sp, b) for sp in ("CN", "C2H") for b in ("def2-tzvp", "def2-qzvp", "pcseg-2")]
     + [("hf", sp, "pcseg-2") for sp in ("NO2", "O2", "HCO2")]
 )
+# Then a core of sets every species gets (adequate and inadequate ones of
+# each family), then the rest, each tier cheapest first.
+CORE_BASES = ["6-31g*", "6-31+g*", "cc-pvdz", "aug-cc-pvdz", "def2-svp", "def2-svpd", "pcseg-1",
+              "aug-pcseg-1", "ma-def2-svp", "6-311+g*", "cc-pvtz", "def2-tzvp", "jun-cc-pvtz"]
+
+
+def _tier(case) -> int:
+    if case in PRIORITY:
+        return 0
+    return 1 if case[2] in CORE_BASES else 2
+
+
 REFERENCE_SET = "aug-cc-pvtz"
 LAYER_GAP = 0.7  # a reference layer must be this much more diffuse (common practice, no source)
 
@@ -266,7 +278,7 @@ def compute(cases, path: str = GRID_FILE, jobs: int = 1, log=print) -> dict:
     """Compute the cases not yet in the file at ``path``, saving after each."""
     data = load_grid(path)
     todo = [c for c in cases if case_key(*c) not in data["cases"]]
-    todo.sort(key=lambda c: (c not in PRIORITY, _cost(c)))
+    todo.sort(key=lambda c: (_tier(c), _cost(c)))
     log(f"{len(cases) - len(todo)} cases cached, {len(todo)} to compute")
     if jobs > 1:
         import multiprocessing
