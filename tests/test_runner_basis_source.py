@@ -129,3 +129,21 @@ def test_the_run_cache_key_covers_the_basis_content(monkeypatch):
     real = pyscf_build.library_shells
     monkeypatch.setattr(pyscf_build, "library_shells", lambda w, s: [[0, [0.5, 1.0]]] + real(w, s)[1:])
     assert cache.key(plan) != before
+
+
+def test_probes_and_runner_build_the_same_molecule_in_a_poisoned_folder(tmp_path, monkeypatch):
+    # the probes build their molecules through the same build_mole
+    from deckward.rules.runner.plan import AtomPlan, ElementBasisPlan, StatePlan
+
+    plan = StatePlan(
+        name="ground", atoms=(AtomPlan("H", (0, 0, 0)), AtomPlan("H", (0, 0, 0.7414))), unit="angstrom",
+        charge=0, spin=0, basis=(("H", ElementBasisPlan("sto3g")),), method="hf", kind="scf",
+        family="hf", xc=None, reference="restricted",
+    )
+    clean = pyscf_build.build_mole(plan)
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "sto3g").write_text(POISON)
+    poisoned = pyscf_build.build_mole(plan)
+    assert poisoned._basis == clean._basis
+    # STO-3G H: one contracted s of three primitives (Hehre, Stewart, Pople 1969)
+    assert len(poisoned._basis["H"][0]) == 4
