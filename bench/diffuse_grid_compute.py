@@ -91,22 +91,22 @@ MP2_BASES = [
 QUICK = [("hf", "O", "cc-pvdz"), ("hf", "O", "aug-cc-pvdz"), ("hf", "Cl", "def2-qzvp"),
          ("hf", "H", "6-31+g*"), ("hf", "CN", "def2-tzvp"), ("mp2", "F", "aug-cc-pvdz")]
 # Large valence sets without augmentation that earlier versions of the
-# criterion failed on strongly bound anions: computed first.
+# criterion failed on strongly bound anions: computed right after the core.
 PRIORITY = (
     [("hf", sp, b) for sp in ("Cl", "Br", "S", "SH") for b in ("def2-qzvp", "cc-pvqz", "pcseg-1")]
     + [("hf", sp, b) for sp in ("CN", "C2H") for b in ("def2-tzvp", "def2-qzvp", "pcseg-2")]
     + [("hf", sp, "pcseg-2") for sp in ("NO2", "O2", "HCO2")]
 )
-# Then a core of sets every species gets (adequate and inadequate ones of
-# each family), then the rest, each tier cheapest first.
+# A core of sets every species gets first (adequate and inadequate ones of
+# each family), then PRIORITY, then the rest, each tier cheapest first.
 CORE_BASES = ["6-31g*", "6-31+g*", "cc-pvdz", "aug-cc-pvdz", "def2-svp", "def2-svpd", "pcseg-1",
               "aug-pcseg-1", "ma-def2-svp", "6-311+g*", "cc-pvtz", "def2-tzvp", "jun-cc-pvtz"]
 
 
 def _tier(case) -> int:
-    if case in PRIORITY:
+    if case[2] in CORE_BASES:
         return 0
-    return 1 if case[2] in CORE_BASES else 2
+    return 1 if case in PRIORITY else 2
 
 
 REFERENCE_SET = "aug-cc-pvtz"

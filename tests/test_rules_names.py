@@ -26,7 +26,7 @@ def test_misspelt_basis_in_a_level():
     [f] = findings
     assert f.message == (
         "`aug-cc-pvdzz` in level `hf_tz` is neither a basis set of the library nor a basis_set of this "
-        "deck; did you mean `aug-cc-pvdz`, `aug-cc-pwcvdz` or `aug-cc-pvdz-ri`?"
+        "deck; did you mean `aug-cc-pvdz`, `d-aug-cc-pVDZ` or `aug-cc-pCVDZ`?"  # both libraries' names
     )
     assert (f.span.line, f.span.column, f.span.end_column) == (5, 35, 47)
     [fx] = f.fixes
