@@ -77,9 +77,7 @@ def judge_case(method: str, sp: str, word: str, binding_known: bool = True, para
     binding = None
     if species is not None and species.electron_affinity is not None and species.anion_bound is not False:
         binding = species.electron_affinity.value_ev
-    symbols = grid.symbols_of(grid.SPECIES[sp][0])
-    if not diffuse.hydrogen_can_hold_electron(symbols):
-        symbols = [s for s in symbols if s != "H"]
+    symbols = diffuse.carrier_symbols(grid.symbols_of(grid.SPECIES[sp][0]))
     flagged = definite = False
     worst = None
     for sym in symbols:

@@ -43,6 +43,7 @@ __all__ = [
     "IONIZATION_ENERGY_EV",
     "diffuse_layers",
     "extra_electron_l",
+    "carrier_symbols",
     "hydrogen_can_hold_electron",
     "layer_threshold",
     "threshold",
@@ -213,6 +214,46 @@ def hydrogen_can_hold_electron(symbols: Sequence[str]) -> bool:
         except ValueError:
             return False
     return True
+
+
+CARRIER_WINDOW_EV = 0.2  # Mulliken electronegativities this close count as equal (common practice, no source)
+
+
+def mulliken_electronegativity(symbol: str) -> float:
+    """(I + A) / 2 in eV: the first ionization energy (IONIZATION_ENERGY_EV)
+    and the measured atomic electron affinity of rules/reference_data.py
+    (0 where the atom has no bound anion or none is tabulated)."""
+    from . import reference_data
+
+    canon = _canonical(symbol)
+    species = reference_data.identify([canon])
+    affinity = 0.0
+    if species is not None and species.anion_bound is not False and species.electron_affinity is not None:
+        affinity = max(species.electron_affinity.value_ev, 0.0)
+    return (IONIZATION_ENERGY_EV[canon] + affinity) / 2.0
+
+
+def carrier_symbols(symbols: Sequence[str]) -> list[str]:
+    """The elements of an anion that carry its extra electron, in the
+    order given: hydrogen in H-, H2- and hydrides of electropositive atoms
+    (hydrogen_can_hold_electron); otherwise the heavy atoms of highest
+    Mulliken electronegativity (within CARRIER_WINDOW_EV of the highest).
+    The electron of methoxide, formate or nitrite sits on its O atoms, of
+    cyanide on N (the grid: def2-SVPD, diffuse s only on C and N,
+    is adequate for CH3O-, HCO2- and NO2-)."""
+    canon = []
+    for s in symbols:
+        c = _canonical(s)
+        if c not in canon:
+            canon.append(c)
+    if hydrogen_can_hold_electron(canon):
+        return canon
+    heavy = [s for s in canon if s != "H"]
+    if len(heavy) <= 1:
+        return heavy
+    scale = {s: mulliken_electronegativity(s) for s in heavy}
+    top = max(scale.values())
+    return [s for s in heavy if scale[s] >= top - CARRIER_WINDOW_EV]
 
 
 def threshold(symbol: str, binding_ev: Optional[float] = None, l: Optional[int] = None,

@@ -440,3 +440,28 @@ def test_species_not_in_the_table_get_a_warning_that_points_to_the_probe():
     assert warn.message.endswith("`deckward probe` measures how much the electron affinity changes with diffuse functions")
     [err] = run("sto-3g")
     assert err.severity.value == "error"
+
+
+@pytest.mark.parametrize(
+    "symbols, carriers",
+    [
+        # Mulliken electronegativity (I + A) / 2 from NIST ionization energies and the measured atomic
+        # electron affinities of rules/reference_data.py: O 7.54, N 7.27 (N- unbound), C 6.26 eV
+        (["N", "O", "O"], ["O"]), (["C", "H", "O", "O"], ["O"]), (["C", "H", "H", "H", "O"], ["O"]),
+        (["C", "N"], ["N"]), (["C", "C", "H"], ["C"]), (["O", "O"], ["O"]), (["H"], ["H"]),
+        (["Li", "H"], ["Li", "H"]),
+    ],
+)
+def test_the_extra_electron_is_judged_where_it_sits(symbols, carriers):
+    from deckward.rules.diffuse import carrier_symbols
+
+    assert carrier_symbols(symbols) == carriers
+
+
+def test_def2_svpd_is_adequate_for_anions_whose_electron_sits_on_oxygen():
+    # def2-SVPD has diffuse s but no diffuse p on C and N; computed at HF (bench/diffuse_grid.json):
+    # CH3O- -0.020, HCO2- +0.004, NO2- -0.063 eV, while the C atom misses 0.48 eV
+    assert [f for f in rule_findings("HCO2", "def2-svpd")] == []
+    assert [f for f in rule_findings("NO2", "def2-svpd")] == []
+    [f] = rule_findings("CN", "def2-svpd")
+    assert "p function on N" in f.message

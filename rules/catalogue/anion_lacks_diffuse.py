@@ -55,8 +55,9 @@ INFO = RuleInfo(
         "functions (aug-cc-pVXZ, 6-31+G*, aug-pcseg-n, ma-def2 sets) exist for this purpose; PySCF's "
         "def2-SVPD and def2-TZVPD add only a diffuse s on C and N, no diffuse p, so they fall short there. "
         "The rule reads the exponents the basis really gives each atom, including shells added in a "
-        "basis_set, so a hand-augmented basis passes. Hydrogen is judged only where the extra electron can "
-        "sit on it (H-, H2-, hydrides of electropositive atoms). An error in electron-affinity work when the "
+        "basis_set, so a hand-augmented basis passes. In a molecule the atoms that carry the extra electron "
+        "are judged: the most electronegative ones (O in formate, methoxide and nitrite), and hydrogen only "
+        "where the electron can sit on it (H-, H2-, hydrides of electropositive atoms). An error in electron-affinity work when the "
         "set is clearly inadequate; a warning pointing to `deckward probe` when the verdict depends on a "
         "binding energy the rule cannot know or lies within the criterion's margin."
     ),
@@ -200,12 +201,11 @@ def clearly_inadequate(v) -> bool:
 
 
 def judged_symbols(rs) -> list[str]:
-    """Elements of the state's real atoms that can carry the extra electron:
-    hydrogen only in H-, H2- and hydrides of electropositive atoms."""
-    symbols = element_symbols(rs)
-    if diffuse.hydrogen_can_hold_electron(symbols):
-        return symbols
-    return [s for s in symbols if s != "H"]
+    """Elements of the state's real atoms that carry the extra electron
+    (diffuse.carrier_symbols); elements without a tabulated ionization
+    energy are left out (they cannot be judged)."""
+    symbols = [s for s in element_symbols(rs) if s in diffuse.IONIZATION_ENERGY_EV]
+    return diffuse.carrier_symbols(symbols)
 
 
 def _verdict(eb, library_word: Optional[str] = None, *, binding=None, correlated=False):
