@@ -1,4 +1,5 @@
-"""What PySCF's basis library offers, without importing PySCF.
+"""What the basis libraries offer (PySCF's and the Basis Set Exchange's),
+without importing either.
 
 Every basis name PySCF's bundled library accepts (its ALIAS and GTH_ALIAS
 tables, plus the Pople names with a polarisation suffix such as
@@ -8,6 +9,14 @@ PySCF.  For every basis and element the index holds what the basis yields:
 contracted shells per angular momentum, the three smallest primitive
 exponents per angular momentum (what diffuse-function checks need), and
 whether an effective core potential comes with it.
+
+Sets PySCF does not ship (aug-cc-pCVTZ, jun-cc-pVTZ, d-aug-cc-pVTZ, ...)
+come from a second index, ``rules/data/basis_index_bse.json.gz``, built the
+same way from the basis_set_exchange package.  A word PySCF knows is always
+answered from PySCF's index, because PySCF's copy is what the runner loads;
+``BasisInfo.source`` says which library answered.  An element PySCF's copy
+lacks is taken from the Basis Set Exchange's set of the same name, as the
+runner does.
 
 Words are matched the way PySCF matches them: lower case, with '-', '_' and
 spaces removed (``normalize``), so ``6-31+G*``, ``6-31+g*`` and ``631+g*``
@@ -27,6 +36,7 @@ from functools import lru_cache
 from pathlib import Path
 
 _INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index.json.gz"
+_BSE_INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index_bse.json.gz"
 
 ZETA_LEVELS = ("minimal", "double", "triple", "quadruple", "quintuple", "unknown")
 
@@ -56,6 +66,7 @@ class BasisInfo:
     elements: frozenset[str]
     auxiliary: bool = False
     zeta_source: str = "data"
+    source: str = "pyscf"  # "pyscf" or "bse": the library whose copy the runner uses
 
 
 @dataclass(frozen=True)
@@ -84,6 +95,16 @@ def _index() -> dict:
     return json.loads(zlib.decompress(_INDEX_FILE.read_bytes(), 31))
 
 
+@lru_cache(maxsize=1)
+def _bse_index() -> dict:
+    return json.loads(zlib.decompress(_BSE_INDEX_FILE.read_bytes(), 31))
+
+
+@lru_cache(maxsize=None)
+def _bse_records(name: str) -> dict:
+    return json.loads(_bse_index()["records"][name])
+
+
 def index_metadata() -> dict:
     """Format, source and PySCF version the stored index was built from."""
     idx = _index()
@@ -100,14 +121,15 @@ def _polarization(prefix: str, token: str) -> dict:
     return json.loads(_index()["pople_polarization"][prefix][token])
 
 
-def _info_from_header(name: str, header: dict) -> BasisInfo:
+def _info_from_header(name: str, header: dict, source: str = "pyscf", extra_elements=()) -> BasisInfo:
     return BasisInfo(
+        source=source,
         name=name,
         aliases=tuple(header["aliases"]),
         zeta=header["zeta"],
         core_valence=header["core_valence"],
         family=header["family"],
-        elements=frozenset(header["elements"]),
+        elements=frozenset(header["elements"]) | frozenset(extra_elements),
         auxiliary=header["auxiliary"],
         zeta_source=header["zeta_source"],
     )
@@ -196,14 +218,39 @@ def _pople_info(norm: str) -> BasisInfo | None:
 # ------------------------------------------------------------- public API
 
 
+def _bse_header(norm: str) -> tuple[str, dict] | None:
+    name = _bse_index()["words"].get(norm)
+    return None if name is None else (name, _bse_index()["bases"][name])
+
+
 @lru_cache(maxsize=1024)
 def lookup(word: str) -> BasisInfo | None:
-    """The library basis a word names (case and '-'/'_'/' ' ignored), or None."""
+    """The library basis a word names (case and '-'/'_'/' ' ignored), or None.
+
+    PySCF's index first; the Basis Set Exchange's only for words PySCF does
+    not know (its elements are added where PySCF's copy lacks them)."""
     norm = normalize(word.strip())
     name = _index()["words"].get(norm)
     if name is not None:
-        return _info_from_header(name, _index()["bases"][name])
-    return _pople_info(norm)
+        bse = _bse_header(norm)
+        return _info_from_header(name, _index()["bases"][name], extra_elements=bse[1]["elements"] if bse else ())
+    pople = _pople_info(norm)
+    if pople is not None:
+        return pople
+    bse = _bse_header(norm)
+    if bse is not None:
+        return _info_from_header(bse[0], bse[1], source="bse")
+    return None
+
+
+def bse_name(word: str) -> str | None:
+    """The Basis Set Exchange's own name for ``word`` when the index has it
+    from that library (PySCF does not ship it), else None."""
+    norm = normalize(word.strip())
+    if norm in _index()["words"] or _pople_info(norm) is not None:
+        return None
+    hit = _bse_header(norm)
+    return hit[0] if hit else None
 
 
 def _merge(records: list[list]) -> list:
@@ -216,6 +263,24 @@ def _merge(records: list[list]) -> list:
         for l, e in enumerate(smallest_l):
             exps[l].update(e)
     return [counts, [sorted(e)[:3] for e in exps], max(r[2] for r in records)]
+
+
+def _pyscf_record(norm: str, symbol: str) -> list | None:
+    name = _index()["words"].get(norm)
+    if name is not None:
+        return _records(name).get(symbol)
+    suffix = _pople_suffix(norm)
+    if suffix is None or symbol not in _records(suffix.base):
+        return None
+    parts = [_records(suffix.base)[symbol]]
+    for token in _pople_tokens_for(suffix, symbol):
+        parts.append(_polarization(suffix.prefix, token)[symbol])
+    return _merge(parts)
+
+
+def _bse_record(norm: str, symbol: str) -> list | None:
+    hit = _bse_header(norm)
+    return None if hit is None else _bse_records(hit[0]).get(symbol)
 
 
 @lru_cache(maxsize=4096)
@@ -232,15 +297,11 @@ def element_data(word: str, symbol: str) -> ElementBasis | None:
     canonical = next((s for s in info.elements if s.lower() == symbol.strip().lower()), None)
     if canonical is None:
         return None
-    norm = normalize(word.strip())
-    if norm in _index()["words"]:
-        record = _records(info.name)[canonical]
-    else:
-        suffix = _pople_suffix(norm)
-        parts = [_records(suffix.base)[canonical]]
-        for token in _pople_tokens_for(suffix, canonical):
-            parts.append(_polarization(suffix.prefix, token)[canonical])
-        record = _merge(parts)
+    record = _pyscf_record(normalize(word.strip()), canonical)
+    if record is None:
+        record = _bse_record(normalize(word.strip()), canonical)
+    if record is None:
+        return None
     counts, smallest, ecp = record
     return ElementBasis(
         symbol=canonical,
@@ -261,9 +322,11 @@ _POPLE_COMPLETION_LIGHT = ("", "p", "2p", "3p", "pd", "2pd", "3pd")
 def _all_names() -> tuple[str, ...]:
     idx = _index()
     names = set()
-    for name, header in idx["bases"].items():
-        names.add(name)
-        names.update(header["aliases"])
+    for table in (idx["bases"], _bse_index()["bases"]):
+        for name, header in table.items():
+            if not header["auxiliary"] or table is idx["bases"]:
+                names.add(name.lower() if table is not idx["bases"] else name)
+                names.update(a for a in header["aliases"] if normalize(a) not in idx["words"])
     for base in _POPLE_COMPLETION_BASES:
         for heavy in _POPLE_COMPLETION_HEAVY:
             for light in _POPLE_COMPLETION_LIGHT:
@@ -286,7 +349,8 @@ def closest(word: str, n: int = 3) -> list[str]:
     norm = normalize(word.strip())
     if not norm or n <= 0:
         return []
-    words = _index()["words"]
+    words = dict(_bse_index()["words"])
+    words.update(_index()["words"])  # PySCF's canonical name wins for a shared word
     hits = nearest(norm, words, n=4 * n, key=normalize)
     out: list[str] = []
     for hit in hits:

@@ -15,10 +15,11 @@ are read once from PySCF here and stored as package data:
   angular momentum, the three smallest primitive exponents per angular
   momentum, and whether an effective core potential comes with it.
 
-PySCF, when the optional basis_set_exchange package is installed, also
-fetches names and elements it does not ship from that package.  The index
-records only what PySCF itself ships, because the runner cannot count on the
-optional package being present.
+- ``rules/data/basis_index_bse.json.gz``: the same records for every basis
+  set the Basis Set Exchange publishes (the basis_set_exchange package, a
+  dependency of deckward), read from that package's own data.  A word PySCF
+  ships is answered from PySCF's index (its copy is what the runner uses);
+  the rest from this one.
 
 This module is the only place (besides probes and the runner) that imports
 PySCF, and it does so inside functions.
@@ -38,6 +39,7 @@ from pathlib import Path
 DATA_DIR = Path(__file__).resolve().parent / "data"
 ELEMENTS_FILE = DATA_DIR / "elements.json"
 BASIS_INDEX_FILE = DATA_DIR / "basis_index.json.gz"
+BSE_INDEX_FILE = DATA_DIR / "basis_index_bse.json.gz"
 
 FORMAT_VERSION = 1
 N_SMALLEST = 3
@@ -245,6 +247,13 @@ def family_of(name: str) -> str:
         ("ccecp", "ccecp"),
         ("crystal-", "crystal"),
         ("heavy-aug-cc", "aug-cc"),
+        ("d-aug-cc", "aug-cc"),
+        ("t-aug-cc", "aug-cc"),
+        ("jul-cc", "calendar-cc"),
+        ("jun-cc", "calendar-cc"),
+        ("may-cc", "calendar-cc"),
+        ("apr-cc", "calendar-cc"),
+        ("mar-cc", "calendar-cc"),
         ("aug-cc-", "aug-cc"),
         ("cc-", "cc"),
         ("ma-def2", "ma-def2"),
@@ -302,7 +311,7 @@ def zeta_from_name(name: str) -> str:
     """Zeta level read from naming conventions; used only as a cross-check."""
     import re
 
-    n = normalize(name)
+    n = normalize(name).replace("(", "").replace("+d)", "")  # cc-pV(T+d)Z reads as cc-pVTZ
     if is_auxiliary(n):
         return "unknown"
     if n.startswith(("sto", "minao")) or n.endswith("szv") or "szvmolopt" in n:
@@ -343,7 +352,7 @@ def augmentation_layers_by_name(name: str) -> int:
         return 3
     if "daug" in n:
         return 2
-    if "aug" in n or n.startswith(
+    if "aug" in n or n.startswith(("jul", "jun", "may", "apr", "mar")) or n.startswith(
         ("madef2", "adzp", "atzp", "aqzp", "dyallav", "dyallacv", "dyallaae", "roos")
     ):
         return 1  # roos-dz/tz are the "Roos augmented" ANO sets (file header)
@@ -406,6 +415,26 @@ def choose_zeta(by_data: str, by_name: str, auxiliary: bool) -> tuple[str, str]:
 # ----------------------------------------------------------- the index
 
 
+def basis_header(name: str, aliases: list, shells_o, elements: list, aux: bool) -> dict:
+    """The stored header of one basis set: names, family, zeta (with where
+    the level came from), core-valence and auxiliary flags, elements."""
+    cv = core_valence_of(name)
+    by_name = zeta_from_name(name)
+    by_data = "unknown" if aux else zeta_from_data(shells_o, name, cv)
+    zeta, zeta_source = choose_zeta(by_data, by_name, aux)
+    return {
+        "aliases": aliases,
+        "family": family_of(name),
+        "zeta": zeta,
+        "zeta_source": zeta_source,
+        "zeta_by_name": by_name,
+        "zeta_by_data": by_data,
+        "core_valence": cv,
+        "auxiliary": aux,
+        "elements": elements,
+    }
+
+
 def basis_entries(only: set[str] | None = None) -> tuple[dict, dict]:
     """Headers and element records for every library basis (or only some).
 
@@ -426,23 +455,8 @@ def basis_entries(only: set[str] | None = None) -> tuple[dict, dict]:
                 shells_o = None
             if not recs:
                 continue
-            aux = is_auxiliary(name)
-            cv = core_valence_of(name)
-            by_name = zeta_from_name(name)
-            by_data = "unknown" if aux else zeta_from_data(shells_o, name, cv)
-            zeta, zeta_source = choose_zeta(by_data, by_name, aux)
             aliases = sorted(set(keys) | {name})
-            headers[name] = {
-                "aliases": aliases,
-                "family": family_of(name),
-                "zeta": zeta,
-                "zeta_source": zeta_source,
-                "zeta_by_name": by_name,
-                "zeta_by_data": by_data,
-                "core_valence": cv,
-                "auxiliary": aux,
-                "elements": sorted(recs, key=_z_of),
-            }
+            headers[name] = basis_header(name, aliases, shells_o, sorted(recs, key=_z_of), is_auxiliary(name))
             records[name] = recs
     return headers, records
 
@@ -510,6 +524,109 @@ def build_basis_index() -> dict:
     }
 
 
+# ------------------------------------------------ the Basis Set Exchange
+
+
+def bse_element_record(element: dict) -> list | None:
+    """[functions per l, smallest exps per l, ecp] from one BSE element entry.
+
+    A shell listing several angular momenta (Pople "SP") gives each of them
+    one function per coefficient row, as PySCF's converter does."""
+    shells = element.get("electron_shells") or []
+    if not shells:
+        return None
+    lmax = max(max(sh["angular_momentum"]) for sh in shells)
+    counts = [0] * (lmax + 1)
+    exps: list[set] = [set() for _ in range(lmax + 1)]
+    for sh in shells:
+        moments = sh["angular_momentum"]
+        values = {float(e) for e in sh["exponents"]}
+        for i, l in enumerate(moments):
+            counts[l] += len(sh["coefficients"]) if len(moments) == 1 else 1
+            exps[l].update(values)
+            if len(moments) > 1 and i >= len(sh["coefficients"]):
+                break
+    smallest = [sorted(e)[:N_SMALLEST] for e in exps]
+    return [counts, smallest, 1 if element.get("ecp_potentials") else 0]
+
+
+def _bse_shells_o(element: dict) -> list:
+    """Oxygen's shells in PySCF's list shape, for the zeta count."""
+    out = []
+    for sh in element.get("electron_shells") or []:
+        moments = sh["angular_momentum"]
+        rows = list(zip(*([sh["exponents"]] + sh["coefficients"])))
+        if len(moments) == 1:
+            out.append([moments[0]] + [[float(x) for x in r] for r in rows])
+        else:
+            for k, l in enumerate(moments):
+                out.append([l] + [[float(r[0]), float(r[k + 1])] for r in rows])
+    return out
+
+
+def _bse_plain_aliases(names: list[str]) -> dict[str, str]:
+    """Plain names of the calendar sets the BSE publishes only as (X+d):
+    jun-cc-pVTZ -> jun-cc-pV(T+d)Z.  Papajak and Truhlar built the calendar
+    sets on aug-cc-pV(X+d)Z, so the two names are one set (identical for
+    H-Ne; the (X+d) form adds the tight d of Al-Ar)."""
+    import re
+
+    have = {normalize(n) for n in names}
+    out = {}
+    for name in names:
+        m = re.fullmatch(r"(jul|jun|may|apr|mar)-cc-pv\(([dtq5])\+d\)z", name.lower())
+        if m:
+            plain = f"{m.group(1)}-cc-pv{m.group(2)}z"
+            if normalize(plain) not in have:
+                out[plain] = name
+    return out
+
+
+def build_bse_index(only: set[str] | None = None) -> dict:
+    """Every Basis Set Exchange set: headers and per-element records."""
+    import basis_set_exchange as bse
+    from basis_set_exchange import lut
+
+    metadata = bse.get_metadata()
+    names = sorted(meta["display_name"] for meta in metadata.values())
+    aliases = _bse_plain_aliases(names)
+    headers, records, words = {}, {}, {}
+    for key in sorted(metadata):
+        meta = metadata[key]
+        name = meta["display_name"]
+        if only is not None and name.lower() not in only:
+            continue
+        data = bse.get_basis(name)
+        recs = {}
+        shells_o = None
+        for z, element in data["elements"].items():
+            record = bse_element_record(element)
+            if record is None:
+                continue
+            symbol = lut.element_sym_from_Z(int(z), True)
+            recs[symbol] = record
+            if symbol == ZETA_REFERENCE_ATOM:
+                shells_o = _bse_shells_o(element)
+        if not recs:
+            continue  # ECP-only entries carry no orbital basis
+        aux = meta["role"] != "orbital" or is_auxiliary(name)
+        own = sorted({name} | set(meta.get("other_names") or []) | {a for a, t in aliases.items() if t == name})
+        elements = sorted(recs, key=lambda s: lut.element_Z_from_sym(s))
+        headers[name] = basis_header(name, own, shells_o, elements, aux)
+        records[name] = recs
+        for alias in own:
+            words.setdefault(normalize(alias), name)
+    return {
+        "format": FORMAT_VERSION,
+        "source": "basis_set_exchange package data (get_metadata, get_basis)",
+        "bse_version": bse.version(),
+        "normalisation": "lower case; remove '-', '_' and ' ' (as pyscf.gto.basis)",
+        "words": words,
+        "bases": headers,
+        "records": {name: _dump(records[name]) for name in sorted(records)},
+    }
+
+
 def _dump(obj) -> str:
     return json.dumps(obj, separators=(",", ":"), sort_keys=True)
 
@@ -537,6 +654,7 @@ def main(argv: list[str] | None = None) -> int:
 
     elements_text = _elements_text(build_elements())
     index = build_basis_index()
+    bse_index = build_bse_index()
     if args.check:
         stale = []
         if not ELEMENTS_FILE.exists() or ELEMENTS_FILE.read_text() != elements_text:
@@ -547,12 +665,19 @@ def main(argv: list[str] | None = None) -> int:
                 stored = json.load(fh)
         if stored != json.loads(_dump(index)):
             stale.append(str(BASIS_INDEX_FILE))
+        stored_bse = None
+        if BSE_INDEX_FILE.exists():
+            with gzip.open(BSE_INDEX_FILE, "rt") as fh:
+                stored_bse = json.load(fh)
+        if stored_bse != json.loads(_dump(bse_index)):
+            stale.append(str(BSE_INDEX_FILE))
         for path in stale:
             print(f"stale: {path}")
         return 1 if stale else 0
 
     ELEMENTS_FILE.write_text(elements_text)
     _write_json_gz(BASIS_INDEX_FILE, index)
+    _write_json_gz(BSE_INDEX_FILE, bse_index)
     mismatched = [
         (n, h["zeta_by_data"], h["zeta_by_name"])
         for n, h in index["bases"].items()
@@ -561,7 +686,8 @@ def main(argv: list[str] | None = None) -> int:
     print(
         f"wrote {ELEMENTS_FILE} and {BASIS_INDEX_FILE} "
         f"({len(index['bases'])} basis sets, {len(index['words'])} words, "
-        f"{BASIS_INDEX_FILE.stat().st_size} bytes)"
+        f"{BASIS_INDEX_FILE.stat().st_size} bytes) and {BSE_INDEX_FILE} "
+        f"({len(bse_index['bases'])} sets, {BSE_INDEX_FILE.stat().st_size} bytes)"
     )
     for name, by_data, by_name in mismatched:
         print(f"zeta cross-check: {name}: data says {by_data}, name says {by_name} (name kept)")

@@ -49,19 +49,35 @@ def test_normalize_is_pyscfs(word):
     assert bl.normalize(word) == pyscf_basis._format_basis_name(word)
 
 
+def bse_covers(word) -> set[str]:
+    """Elements the Basis Set Exchange's set of this name covers (PySCF falls
+    back to it for elements its own copy lacks, and so does the runner)."""
+    bse = pytest.importorskip("basis_set_exchange")
+    from basis_set_exchange import lut
+
+    for meta in bse.get_metadata().values():
+        names = [meta["display_name"]] + list(meta.get("other_names") or [])
+        if any(bl.normalize(n) == bl.normalize(word) for n in names):
+            version = meta["versions"][meta["latest_version"]]
+            return {lut.element_sym_from_Z(int(z), True) for z in version["elements"]}
+    return set()
+
+
 @pytest.mark.parametrize("word", SAMPLE)
 def test_coverage_agrees_with_pyscf(word, pyscf_library_only):
     info = bl.lookup(word)
     pyscf_set = {s for s in ELEMENTS[1:87] if pyscf_covers(word, s)}
-    assert {s for s in info.elements if s in ELEMENTS[1:87]} == pyscf_set
+    expected = pyscf_set | (bse_covers(word) & set(ELEMENTS[1:87]))
+    assert {s for s in info.elements if s in ELEMENTS[1:87]} == expected
 
 
 @pytest.mark.parametrize(
     "word,present,absent",
     [
-        # absences read from PySCF's bundled files; the test re-asks PySCF
+        # absences read from PySCF's bundled files and the Basis Set Exchange;
+        # the test re-asks PySCF (cc-pwCVDZ's B-Ar come from the Basis Set Exchange)
         ("iglo3", ["H", "C", "F", "Cl"], ["O", "N"]),
-        ("cc-pwcvdz", ["Ga", "Br"], ["O", "Cl"]),
+        ("cc-pwcvdz", ["Ga", "Br"], ["H", "He"]),
         ("6-31g*", ["H", "O", "Cl", "Br"], ["I", "Xe"]),
         ("sto-3g", ["H", "O", "I"], ["Rn"]),
         ("def2-svp", ["H", "O", "I"], ["Fr"]),
@@ -274,3 +290,109 @@ def test_typing_path_never_imports_pyscf():
         "assert 'pyscf' not in sys.modules, 'pyscf was imported'\n"
     )
     subprocess.run([sys.executable, "-c", code], check=True)
+
+
+# ------------------------------------------------ the Basis Set Exchange index
+
+BSE_SAMPLE = ["aug-cc-pCVTZ", "jun-cc-pV(T+d)Z", "may-cc-pV(T+d)Z", "d-aug-cc-pVTZ", "6-31G*", "def2-TZVP",
+              "pcseg-2", "ANO-RCC-VTZP"]
+
+
+def test_stored_bse_index_matches_installed_basis_set_exchange():
+    bse = pytest.importorskip("basis_set_exchange")
+    with gzip.open(build_data.BSE_INDEX_FILE, "rt") as fh:
+        stored = json.load(fh)
+    note = (f"index built with basis_set_exchange {stored['bse_version']}, installed {bse.version()}: "
+            "run `python -m deckward.rules.build_data` to regenerate")
+    fresh = build_data.build_bse_index(only={n.lower() for n in BSE_SAMPLE})
+    assert set(fresh["bases"]) == set(BSE_SAMPLE), note
+    for name in BSE_SAMPLE:
+        assert stored["bases"][name] == fresh["bases"][name], f"{name}: {note}"
+        assert stored["records"][name] == fresh["records"][name], f"{name}: {note}"
+    # every set the package publishes with orbital functions is indexed
+    published = {m["display_name"] for m in bse.get_metadata().values()}
+    assert len(published - set(stored["bases"])) < 15, published - set(stored["bases"])
+
+
+@pytest.mark.parametrize(
+    "word, name",
+    [
+        ("aug-cc-pCVTZ", "aug-cc-pCVTZ"),
+        ("jun-cc-pVTZ", "jun-cc-pV(T+d)Z"),
+        ("may-cc-pVTZ", "may-cc-pV(T+d)Z"),
+        ("d-aug-cc-pVTZ", "d-aug-cc-pVTZ"),
+        ("D-AUG-CC-PVTZ", "d-aug-cc-pVTZ"),
+    ],
+)
+def test_sets_pyscf_lacks_are_found_in_the_basis_set_exchange(word, name):
+    info = bl.lookup(word)
+    assert info is not None and info.name == name and info.source == "bse"
+    assert info.zeta == "triple" and not info.auxiliary
+    # aug-cc-pCVTZ has no H (no core to correlate); d-aug-cc-pVTZ is published for H-Ne only
+    assert {"C", "N", "O", "F"} <= info.elements
+
+
+def test_bse_records_agree_with_the_package():
+    bse = pytest.importorskip("basis_set_exchange")
+    # aug-cc-pCVTZ on O: 7s6p4d2f... smallest s and p are the aug- layer, as
+    # published by the Basis Set Exchange (Woon and Dunning 1995 core-valence set).
+    data = bse.get_basis("aug-cc-pCVTZ", elements=[8])["elements"]["8"]["electron_shells"]
+    smallest_p = min(float(e) for sh in data if 1 in sh["angular_momentum"] for e in sh["exponents"])
+    o = bl.element_data("aug-cc-pcvtz", "o")
+    assert o.smallest_exponents[1][0] == smallest_p
+    assert o.functions_per_l[:2] == (
+        sum(len(sh["coefficients"]) for sh in data if sh["angular_momentum"] == [0]),
+        sum(len(sh["coefficients"]) for sh in data if sh["angular_momentum"] == [1]),
+    )
+
+
+def test_pyscf_copy_wins_for_a_word_both_libraries_know():
+    assert bl.lookup("cc-pvtz").source == "pyscf"
+    assert bl.lookup("6-311++G(2df,2pd)").source == "pyscf"
+    assert bl.bse_name("cc-pvtz") is None
+    assert bl.bse_name("jun-cc-pvtz") == "jun-cc-pV(T+d)Z"
+
+
+def test_names_neither_library_knows_stay_unknown():
+    assert bl.lookup("aug-cc-pvxyz") is None
+    assert bl.lookup("cc-pvtzz") is None
+    # did-you-mean draws on both libraries
+    assert "d-aug-cc-pVTZ" in bl.closest("d-aug-cc-pvtzz")
+    assert bl.closest("cc-pvtzz")[0] == "cc-pvtz"
+
+
+def test_bse_lookup_imports_neither_library():
+    code = (
+        "import sys, deckward.rules.basis_library as b\n"
+        "assert b.lookup('jun-cc-pvtz').source == 'bse'; b.element_data('aug-cc-pcvtz', 'O'); b.closest('daugccpvtzz')\n"
+        "assert 'pyscf' not in sys.modules and 'basis_set_exchange' not in sys.modules\n"
+    )
+    subprocess.run([sys.executable, "-c", code], check=True)
+
+
+EA_DECK = """study "acceptor-cn" {{ goal = electron_affinity }}
+geometry cn {{
+  C 0 0 0
+  N 0 0 1.1718
+}}
+level hf_x {{ method = hf basis = {basis} reference = unrestricted }}
+state radical {{ geometry = cn level = hf_x charge = 0 multiplicity = 2 }}
+state anion {{ geometry = cn level = hf_x charge = -1 multiplicity = 1 }}
+derive ea as electron_affinity = energy(radical) - energy(anion) in ev
+"""
+
+
+@pytest.mark.parametrize("basis", ["aug-cc-pCVTZ", "jun-cc-pVTZ", "may-cc-pVTZ", "d-aug-cc-pVTZ"])
+def test_check_knows_published_sets_pyscf_does_not_ship(basis):
+    from rule_harness import check_text
+
+    findings, _ = check_text(EA_DECK.format(basis=basis))
+    assert [f for f in findings if f.rule in ("unknown-basis", "basis-missing-element")] == []
+
+
+def test_check_still_reports_a_name_no_library_knows():
+    from rule_harness import check_text
+
+    findings, _ = check_text(EA_DECK.format(basis="aug-cc-pvxyz"))
+    [f] = [f for f in findings if f.rule == "unknown-basis"]
+    assert f.severity.value == "error"

@@ -26,11 +26,11 @@ def test_misspelt_basis_in_a_level():
     [f] = findings
     assert f.message == (
         "`aug-cc-pvdzz` in level `hf_tz` is neither a basis set of the library nor a basis_set of this "
-        "deck; did you mean `aug-cc-pvdz`, `aug-cc-pvdpdz` or `aug-cc-pvdz-dk`?"
+        "deck; did you mean `aug-cc-pvdz`, `aug-cc-pCVDZ` or `d-aug-cc-pVDZ`?"  # both libraries' names
     )
     assert (f.span.line, f.span.column, f.span.end_column) == (5, 35, 47)
     fx = f.fixes[0]  # one fix per suggestion, the nearest first
-    assert [x.title for x in f.fixes] == ["Use `aug-cc-pvdz`", "Use `aug-cc-pvdpdz`", "Use `aug-cc-pvdz-dk`"]
+    assert [x.title for x in f.fixes] == ["Use `aug-cc-pvdz`", "Use `aug-cc-pCVDZ`", "Use `d-aug-cc-pVDZ`"]
     assert fx.applicability.value == "risky"
     assert apply_edits(text, fx.edits) == CN + "level hf_tz { method = hf basis = aug-cc-pvdz }\n"
 

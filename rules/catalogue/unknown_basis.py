@@ -14,8 +14,8 @@ INFO = RuleInfo(
     category="electrons",
     title="A basis set that is neither in the library nor defined in the deck",
     why=(
-        "A basis word must name a set of the basis library (matched ignoring case, '-' and '_') "
-        "or a `basis_set` of the deck. Anything else cannot be run, and a misspelt name is easily "
+        "A basis word must name a set of PySCF's basis library or of the Basis Set Exchange (matched "
+        "ignoring case, '-' and '_') or a `basis_set` of the deck. Anything else cannot be run, and a misspelt name is easily "
         "read as a different set (cc-pvtz for aug-cc-pvtz changes every anion result). The message "
         "names the closest library sets."
     ),

@@ -69,7 +69,18 @@ class RunCache:
             raise CacheUnusable(f"the run cache {self.folder} cannot be written; choose another with --cache-dir")
 
     def key(self, plan: StatePlan) -> str:
-        return content_hash(plan, pyscf_version())
+        """The plan's content hash, extended by the exact basis shells the
+        state gets (a changed library copy never answers from an old entry)."""
+        import hashlib
+
+        from .pyscf_build import BasisUnavailable, basis_digest
+
+        try:
+            digest = basis_digest(plan)
+        except BasisUnavailable as e:
+            digest = f"unavailable: {e}"
+        base = content_hash(plan, pyscf_version())
+        return hashlib.sha256(f"{base}:{digest}".encode("utf-8")).hexdigest()
 
     def log_path(self, key: str) -> Optional[str]:
         """Where the state's PySCF log goes (None: the folder cannot be made,

@@ -1,8 +1,9 @@
 """Build PySCF objects from a ``StatePlan`` (imports PySCF; runner only).
 
 The mapping is literal: the geometry goes to PySCF in its own unit, library
-basis words go to PySCF's loader unchanged, added shells are appended as
-uncontracted primitives, ghost atoms become ``ghost-X`` atoms carrying X's
+basis words become the shells of the library that names them (PySCF's own
+copy when it has one, else the Basis Set Exchange's; never a file, see
+``library_shells``), added shells are appended as uncontracted primitives, ghost atoms become ``ghost-X`` atoms carrying X's
 basis, and the reference picks RHF/UHF/ROHF (RKS/UKS/ROKS for functionals).
 Nothing is tuned: PySCF's own defaults (convergence thresholds, grids)
 apply, so a deck's numbers equal those of PySCF called directly.
@@ -14,20 +15,104 @@ from typing import Optional
 from .plan import StatePlan
 
 
-def basis_dict(plan: StatePlan) -> dict:
-    from pyscf import gto
+class BasisUnavailable(Exception):
+    """A library basis word whose data cannot be had (one line, for the user)."""
 
+
+def _pyscf_library_shells(word: str, symbol: str):
+    """The shells PySCF's bundled library holds for ``word`` and ``symbol``,
+    or None when PySCF does not ship them.
+
+    PySCF's own ``gto.basis.load`` first asks ``os.path.isfile(word)`` and
+    reads any file of that name, so a file called ``sto3g`` in the working
+    folder would replace the library set.  Here the word is only ever looked
+    up in PySCF's name tables and read from PySCF's own data folders.
+    """
+    import importlib
+    import os
+
+    from pyscf.gto import basis as lib
+    from pyscf.gto.basis import parse_cp2k, parse_nwchem
+
+    name = lib._format_basis_name(word)
+    folder, reader = lib._BASIS_DIR, parse_nwchem.load
+    if name in lib.ALIAS:
+        target = lib.ALIAS[name]
+    elif name in lib.GTH_ALIAS:
+        target, folder, reader = lib.GTH_ALIAS[name], lib._GTH_BASIS_DIR, parse_cp2k.load
+    elif lib._is_pople_basis(name):
+        try:
+            target = lib._parse_pople_basis(name, symbol)
+        except KeyError:
+            return None
+    else:
+        return None
+    try:
+        if isinstance(target, str) and "dat" not in target:
+            module = importlib.import_module("." + target, lib.__name__)
+            return list(getattr(module, symbol))
+        files = (target,) if isinstance(target, str) else tuple(target)
+        shells = []
+        for f in files:
+            shells += reader(os.path.join(folder, f), symbol)
+        return shells or None
+    except (lib.BasisNotFoundError, AttributeError, KeyError):
+        return None
+
+
+def _bse_shells(word: str, symbol: str):
+    """The Basis Set Exchange's shells for ``word`` and ``symbol``, or None."""
+    from .. import basis_library
+
+    try:
+        import basis_set_exchange
+    except ImportError:
+        raise BasisUnavailable(
+            f"basis `{word}` comes from the Basis Set Exchange, but the basis_set_exchange package "
+            "is not installed (pip install basis_set_exchange)"
+        ) from None
+    from pyscf.gto.basis import bse as convert
+
+    name = basis_library.bse_name(word) or word
+    try:
+        data = basis_set_exchange.get_basis(name, elements=[symbol])
+    except (KeyError, RuntimeError, ValueError):
+        return None
+    return convert._orbital_basis(data)[0].get(symbol)
+
+
+def library_shells(word: str, symbol: str) -> list:
+    """Shells of library basis ``word`` for element ``symbol``: PySCF's copy
+    when it ships one, the Basis Set Exchange's otherwise.  Raises
+    BasisUnavailable when neither has it."""
+    shells = _pyscf_library_shells(word, symbol)
+    if shells is None:
+        shells = _bse_shells(word, symbol)
+    if not shells:
+        raise BasisUnavailable(f"basis `{word}` has no functions for {symbol} in PySCF's library or the Basis Set Exchange")
+    return shells
+
+
+def basis_dict(plan: StatePlan) -> dict:
+    """Element -> explicit shells (never a name PySCF would resolve itself)."""
     out = {}
     for symbol, eb in plan.basis:
-        if eb.shells:
-            shells = list(gto.basis.load(eb.library, symbol)) if eb.library else []
-            shells += [[l, [exp, 1.0]] for l, exp in eb.shells]
-            value = shells
-        else:
-            value = eb.library
-        out[symbol] = value
-        out["GHOST-" + symbol] = value
+        shells = list(library_shells(eb.library, symbol)) if eb.library else []
+        shells += [[l, [exp, 1.0]] for l, exp in eb.shells]
+        out[symbol] = shells
+        out["GHOST-" + symbol] = shells
     return out
+
+
+def basis_digest(plan: StatePlan) -> str:
+    """SHA-256 of the exact shells every element gets: the run cache keys on
+    it, so a changed library copy can never be answered from an old entry."""
+    import hashlib
+    import json
+
+    text = json.dumps(sorted((k, v) for k, v in basis_dict(plan).items() if not k.startswith("GHOST-")),
+                      separators=(",", ":"), default=float)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
 def atom_list(plan: StatePlan, coords=None) -> list:
