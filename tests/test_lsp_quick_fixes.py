@@ -61,7 +61,7 @@ async def test_basis_typo_ranks_the_transposition_first(client: LanguageClient):
     assert [title for title, _, _ in fixes] == [
         "Use `aug-cc-pvdz` (risky: changes what is computed)",
         "Use `aug-cc-pv5z` (risky: changes what is computed)",
-        "Use `aug-cc-pvqz` (risky: changes what is computed)",
+        "Use `aug-cc-pV6Z` (risky: changes what is computed)",
     ]
     assert fixes[0][2] == CN + LEVEL
 
