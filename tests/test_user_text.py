@@ -33,14 +33,7 @@ def _metadata_text(info) -> list[str]:
     ]
 
 
-def _unflagged(rule_id):
-    # unknown-basis still shows a recalled reference with its tag; it is rewritten separately.
-    if rule_id == "unknown-basis":
-        return pytest.param(rule_id, marks=pytest.mark.xfail(reason="reference tag in unknown-basis", strict=False))
-    return rule_id
-
-
-@pytest.mark.parametrize("rule_id", [_unflagged(r.id) for r in RULES])
+@pytest.mark.parametrize("rule_id", [r.id for r in RULES])
 def test_rule_metadata_has_no_internal_markers(rule_id):
     info = all_rules()[rule_id].info
     leaks = [t for t in _metadata_text(info) if t and INTERNAL.search(t)]

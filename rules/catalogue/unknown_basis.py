@@ -22,8 +22,8 @@ INFO = RuleInfo(
     references=(
         "B. P. Pritchard, D. Altarawy, B. Didier, T. D. Gibson, T. L. Windus, J. Chem. Inf. Model. "
         "59, 4814-4820 (2019): the Basis Set Exchange naming of basis sets",
-        "Q. Sun et al., J. Chem. Phys. 153, 024109 (2020): the PySCF basis library the deck runs "
-        "with [from memory]",
+        # from memory
+        "Q. Sun et al., J. Chem. Phys. 153, 024109 (2020): the PySCF basis library the deck runs with",
     ),
     bad_example=(
         "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
