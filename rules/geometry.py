@@ -275,10 +275,7 @@ def fragments(items: list[Site], tolerance: float = BOND_TOLERANCE) -> list[list
     parent = list(range(n))
 
     def root(i: int) -> int:
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
+        return union_find_root(parent, i)
 
     left = [n]  # fragments left: once one is left, nothing more can join
 
@@ -419,3 +416,11 @@ def labels(items: Iterable[Site], limit: int = 8) -> str:
     if len(items) > limit:
         shown += f" and {len(items) - limit} more"
     return shown
+
+
+def union_find_root(parent: list[int], i: int) -> int:
+    """The representative of ``i`` in a union-find forest, halving paths on the way."""
+    while parent[i] != i:
+        parent[i] = parent[parent[i]]
+        i = parent[i]
+    return i

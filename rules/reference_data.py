@@ -34,7 +34,7 @@ from pathlib import Path
 from typing import Iterator, Mapping, Optional, Sequence
 
 from . import elements
-from .geometry import BOND_TOLERANCE
+from .geometry import BOND_TOLERANCE, union_find_root
 
 _DATA_FILE = Path(__file__).resolve().parent / "data" / "reference_species.json"
 
@@ -216,10 +216,7 @@ def bond_counts(
     parent = list(range(n))
 
     def root(i: int) -> int:
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
+        return union_find_root(parent, i)
 
     counts: dict[str, int] = {}
     for i in range(n):

@@ -8,8 +8,6 @@ delta-SCF electron affinities, bench/diffuse_calibration.py).
 from __future__ import annotations
 
 import math
-import subprocess
-import sys
 
 import pytest
 
@@ -309,15 +307,6 @@ def test_diffuse_shell_changes_fluorine_electron_affinity():
 
 
 # ------------------------------------------------------------ module hygiene
-
-def test_import_pulls_in_neither_pyscf_nor_numpy():
-    code = (
-        "import sys, deckward.rules.diffuse; "
-        "print(sorted(m for m in ('pyscf', 'numpy') if m in sys.modules))"
-    )
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == "[]"
-
 
 def test_references_are_the_published_diffuse_basis_papers():
     # citations as in check-values.md section 5
