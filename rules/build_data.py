@@ -659,18 +659,13 @@ def main(argv: list[str] | None = None) -> int:
         stale = []
         if not ELEMENTS_FILE.exists() or ELEMENTS_FILE.read_text() != elements_text:
             stale.append(str(ELEMENTS_FILE))
-        stored = None
-        if BASIS_INDEX_FILE.exists():
-            with gzip.open(BASIS_INDEX_FILE, "rt") as fh:
-                stored = json.load(fh)
-        if stored != json.loads(_dump(index)):
-            stale.append(str(BASIS_INDEX_FILE))
-        stored_bse = None
-        if BSE_INDEX_FILE.exists():
-            with gzip.open(BSE_INDEX_FILE, "rt") as fh:
-                stored_bse = json.load(fh)
-        if stored_bse != json.loads(_dump(bse_index)):
-            stale.append(str(BSE_INDEX_FILE))
+        for path, built in ((BASIS_INDEX_FILE, index), (BSE_INDEX_FILE, bse_index)):
+            stored = None
+            if path.exists():
+                with gzip.open(path, "rt") as fh:
+                    stored = json.load(fh)
+            if stored != json.loads(_dump(built)):
+                stale.append(str(path))
         for path in stale:
             print(f"stale: {path}")
         return 1 if stale else 0

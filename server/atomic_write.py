@@ -81,6 +81,15 @@ def _own_name(target: str, kind: str) -> str:
     return os.path.join(folder, f".{base}.{os.getpid()}.{secrets.token_hex(6)}.deckward-{kind}")
 
 
+def _new_own_file(target: str, kind: str) -> tuple[str, int]:
+    """A new file of our own naming beside ``target``, open for writing (only we can read it yet)."""
+    tmp = _own_name(target, kind)
+    try:
+        return tmp, os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o600)
+    except OSError as e:
+        raise WriteRefused(f"no temporary file can be made in its folder ({e.strerror or e})")
+
+
 def _pid_alive(pid: int) -> bool:
     try:
         os.kill(pid, 0)
@@ -150,11 +159,7 @@ def write_atomically(snapshot: Snapshot, data: bytes) -> None:
                            "with the old text")
     if not unchanged_since(snapshot):
         raise WriteRefused("it changed on disk while being fixed")
-    tmp = _own_name(target, "tmp")
-    try:
-        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o600)
-    except OSError as e:
-        raise WriteRefused(f"no temporary file can be made in its folder ({e.strerror or e})")
+    tmp, fd = _new_own_file(target, "tmp")
     keep = None
     try:
         try:
@@ -228,11 +233,7 @@ def write_new(path: str, data: bytes, overwrite: bool = False) -> None:
         raise WriteRefused("its folder does not exist")
     if not overwrite and os.path.lexists(path):
         raise WriteRefused("it exists (use --force to replace it)")
-    tmp = _own_name(os.path.abspath(path), "new")  # named like the fixer's, so stale ones are cleaned alike
-    try:
-        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o600)
-    except OSError as e:
-        raise WriteRefused(f"no temporary file can be made in its folder ({e.strerror or e})")
+    tmp, fd = _new_own_file(os.path.abspath(path), "new")  # named like the fixer's, so stale ones are cleaned alike
     try:
         try:
             with os.fdopen(fd, "wb") as f:
