@@ -61,7 +61,6 @@ def main() -> None:
     from deckward.grammar.parser import clear_parse_cache, get_parser
     from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.engine import check_workspace
-    from deckward.rules.config import Config
     from deckward.rules.registry import all_rules
     from deckward.server.checking import check_paths
 
@@ -85,7 +84,7 @@ def main() -> None:
             check_workspace(resolve(p, Loader(), folder))
 
     def full_run():  # one `deckward check FOLDER --jobs 1` without the cache, as the command runs it
-        check_paths([folder], config=Config(), jobs=1)
+        check_paths([folder], jobs=1)
 
     model_cold = timed(lambda: model(True))
     checked_cold = timed(full_cold)

@@ -90,7 +90,7 @@ def main() -> None:
 
     from deckward.grammar.parser import get_parser
     from deckward.rules.registry import all_rules
-    from deckward.server.checking import check_paths, config_for
+    from deckward.server.checking import check_paths
     from deckward.server.parallel_check import default_jobs
 
     folder = tempfile.mkdtemp(prefix="deckward-repo-")
@@ -101,7 +101,6 @@ def main() -> None:
         paths = make_repo(repo, args.decks)
         lark_parser = get_parser()
         all_rules()  # import the rule modules once, outside the timings
-        config = config_for([repo], None)
 
         def bare():
             for p in paths:
@@ -110,17 +109,17 @@ def main() -> None:
 
         t_parse, _ = timed(bare)
         c0 = cpu_times()
-        t_j1, r_j1 = timed(lambda: check_paths([repo], config=config, jobs=1))
+        t_j1, r_j1 = timed(lambda: check_paths([repo], jobs=1))
         c1 = cpu_times()
-        t_j2, r_j2 = timed(lambda: check_paths([repo], config=config, jobs=2))
+        t_j2, r_j2 = timed(lambda: check_paths([repo], jobs=2))
         c2 = cpu_times()
         cpu_j1 = c1[0] - c0[0]
         cpu_parent, cpu_workers = c2[0] - c1[0], c2[1] - c1[1]
-        t_cold, r_cold = timed(lambda: check_paths([repo], config=config, jobs=0, cache_dir=cache))
-        t_warm, r_warm = timed(lambda: check_paths([repo], config=config, jobs=0, cache_dir=cache))
+        t_cold, r_cold = timed(lambda: check_paths([repo], jobs=0, cache_dir=cache))
+        t_warm, r_warm = timed(lambda: check_paths([repo], jobs=0, cache_dir=cache))
         with open(paths[0], "a", encoding="utf-8") as f:
             f.write("# edited\n")
-        t_one, r_one = timed(lambda: check_paths([repo], config=config, jobs=0, cache_dir=cache))
+        t_one, r_one = timed(lambda: check_paths([repo], jobs=0, cache_dir=cache))
 
         reference = r_j1.findings
         for name, r in (("--jobs 2", r_j2), ("cold", r_cold), ("warm", r_warm), ("one changed", r_one)):

@@ -233,28 +233,15 @@ def quantity_of(derive: m.Derive, study: Optional[m.Study]) -> Optional[str]:
     return None
 
 
-def workspace_root_for(path: str) -> str:
-    """The folder holding deckward.yaml at or above the file, else the
-    file's own folder."""
-    folder = os.path.dirname(os.path.abspath(path))
-    probe = folder
-    while True:
-        if os.path.isfile(os.path.join(probe, "deckward.yaml")):
-            return probe
-        parent = os.path.dirname(probe)
-        if parent == probe:
-            return folder
-        probe = parent
-
-
-def resolve(path: str, loader: Optional[Loader] = None, root_dir: Optional[str] = None,
-            text: Optional[str] = None) -> Workspace:
+def resolve(path: str, loader: Loader, root_dir: str, text: Optional[str] = None) -> Workspace:
     """Load ``path`` (or ``text`` as that file), its ``use`` files, and link
-    every name.  Never raises for problems in the decks: they become
-    findings.  Raises OSError only when the root file cannot be read."""
-    loader = loader or Loader()
+    every name, inside the workspace ``root_dir`` (which the caller chooses:
+    grammar does not look for configuration files; see
+    ``deckward.rules.project``).  Never raises for problems in the decks:
+    they become findings.  Raises OSError only when the root file cannot be
+    read."""
     root = loader.parse_text(path, text) if text is not None else loader.load(path)
-    root_dir = os.path.realpath(root_dir or workspace_root_for(path))
+    root_dir = os.path.realpath(root_dir)
     findings: list[Finding] = list(root.findings)
     files: list[ParsedFile] = [root]
 

@@ -172,10 +172,10 @@ def compare_recorded(deck_path: str, derive_name: str, value_hartree: Optional[f
     deck path, derive name, value in hartree) as the dict `run --json`
     gives under ``experiment``; None when the deck can no longer be read,
     has no such derive, or there is nothing to compare with."""
-    from deckward.grammar.resolve import Loader, resolve
+    from .project import Projects
 
     try:
-        ws = resolve(deck_path, Loader())
+        ws = Projects().for_path(deck_path).resolve(deck_path)
     except OSError:
         return None
     derive = next((d for d in ws.derives if d.name.value == derive_name), None)

@@ -1,6 +1,8 @@
 """Project configuration: ``deckward.yaml``.
 
-Found in the checked folder or any folder above it (``--config`` overrides).
+Which file applies to a deck is ``deckward.rules.project``'s business (the
+nearest one at or above the deck; ``--config`` overrides); this module reads
+and validates one.
 Read with ``yaml.safe_load`` semantics, but through the node composer so that
 every problem (an unknown key, a bad severity) is reported at its line.
 """
@@ -61,27 +63,6 @@ class Config:
             if fnmatch.fnmatch(rel, pattern) or (pattern.endswith("/**") and rel.startswith(pattern[:-2])):
                 return True
         return False
-
-
-def find_config(start: str) -> Optional[str]:
-    """deckward.yaml in ``start`` (a folder or a file's folder) or above."""
-    folder = os.path.abspath(start)
-    if not os.path.isdir(folder):
-        folder = os.path.dirname(folder)
-    while True:
-        candidate = os.path.join(folder, CONFIG_NAME)
-        if os.path.isfile(candidate):
-            return _display_path(candidate)
-        parent = os.path.dirname(folder)
-        if parent == folder:
-            return None
-        folder = parent
-
-
-def _display_path(path: str) -> str:
-    """``path`` relative to the working folder when it lies below it."""
-    rel = os.path.relpath(path)
-    return path if rel.startswith("..") else rel
 
 
 def load_config(path: Optional[str], known_rules: set[str]) -> Config:

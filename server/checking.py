@@ -10,9 +10,10 @@ from dataclasses import dataclass, field
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Severity
-from deckward.grammar.resolve import Loader, resolve, shown
-from deckward.rules.config import Config, find_config, load_config
-from deckward.rules.engine import check_workspace, dedupe, known_rule_ids
+from deckward.grammar.resolve import Loader, shown
+from deckward.rules.config import Config
+from deckward.rules.engine import dedupe
+from deckward.rules.project import Project, Projects, config_findings
 
 from .scale_options import IN_PROCESS_BELOW
 
@@ -45,10 +46,11 @@ class CheckResult:
         return c
 
 
-def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] = None) -> list[str]:
+def discover(paths: Iterable[str], projects: Projects, skipped: Optional[list[str]] = None) -> list[str]:
     """Deck files named or found below the given paths, in a stable order.
     Raises UsageError for a path that does not exist.  Found below a
-    folder, only regular files inside the workspace count: a FIFO or device
+    folder, a deck counts unless its project's configuration excludes it,
+    and only regular files inside its workspace count: a FIFO or device
     named ``*.deck`` would hang the reader, and a link out of the workspace
     would read (and let ``--fix`` write) a file that is not the project's;
     each one skipped adds a note to ``skipped``."""
@@ -62,8 +64,7 @@ def discover(paths: Iterable[str], config: Config, skipped: Optional[list[str]] 
             for folder, dirs, files in os.walk(p):
                 dirs[:] = sorted(d for d in dirs if not d.startswith("."))
                 candidates.extend(os.path.join(folder, f) for f in sorted(files) if f.endswith(".deck"))
-            candidates = [c for c in candidates if not config.is_excluded(c)]
-            candidates = confined(candidates, root_for(p, config, p), skipped)
+            candidates = confined(candidates, projects, p, skipped)
         elif os.path.exists(p):
             raise UsageError(f"{p}: not a file or folder")
         else:
@@ -84,16 +85,19 @@ def require_decks(files: list[str], paths: Iterable[str], skipped: Iterable[str]
         raise UsageError(f"nothing to check: no deck files (*.deck) in {', '.join(paths)}")
 
 
-def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = None) -> list[str]:
-    from deckward.grammar.resolve import inside_root
+def confined(candidates: list[str], projects: Projects, anchor: str,
+             skipped: Optional[list[str]] = None) -> list[str]:
+    """The decks found below the folder ``anchor`` that their projects keep."""
     from deckward.grammar.safe_open import is_regular_file
 
     kept = []
-    real_root = os.path.realpath(root)
     for c in candidates:
+        project = projects.for_path(c, anchor)
+        if project.config.is_excluded(c):
+            continue
         if not is_regular_file(c):
             why = "it is not a regular file"
-        elif not inside_root(os.path.realpath(c), real_root):
+        elif not project.contains(c):
             why = "it is a link to a file outside the workspace"
         else:
             kept.append(c)
@@ -103,85 +107,92 @@ def confined(candidates: list[str], root: str, skipped: Optional[list[str]] = No
     return kept
 
 
-def config_for(paths: list[str], explicit: Optional[str]) -> Config:
-    known = known_rule_ids()
-    if explicit is not None:
-        if not os.path.isfile(explicit):
-            raise UsageError(f"{explicit}: no such configuration file")
-        return load_config(explicit, known)
-    first = paths[0] if paths else "."
-    return load_config(find_config(first) if os.path.exists(first) else None, known)
+def projects_for(config_path: Optional[str] = None, loader: Optional[Loader] = None) -> Projects:
+    """The projects of a command (``--config``: one configuration for every
+    deck); a UsageError when the named configuration file does not exist."""
+    if config_path is not None and not os.path.isfile(config_path):
+        raise UsageError(f"{config_path}: no such configuration file")
+    return Projects(config_path, loader)
 
 
-def root_for(path: str, config: Config, given: str) -> str:
-    """The workspace root: the configuration's folder, else the folder given
-    on the command line (or a given file's folder)."""
-    if config.root:
-        return config.root
-    return given if os.path.isdir(given) else os.path.dirname(os.path.abspath(given))
+def project_of(path: str, config_path: Optional[str] = None) -> Project:
+    """The project of one deck named on the command line (``run``,
+    ``converge``)."""
+    return projects_for(config_path).for_path(path, None)
 
 
-def check_paths(paths: list[str], config: Optional[Config] = None, config_path: Optional[str] = None,
-                loader: Optional[Loader] = None, probe: bool = False, jobs: int = 1,
-                cache_dir: Optional[str] = None, cache_from: int = 1, probe_progress: bool = False) -> CheckResult:
-    """Check every deck below ``paths``.  With ``probe``, the PySCF probes
-    run too (``deckward.rules.probes``) and their findings go through the
-    same severity and suppression handling.
+def check_paths(paths: list[str], config_path: Optional[str] = None, projects: Optional[Projects] = None,
+                probe: bool = False, jobs: int = 1, cache_dir: Optional[str] = None, cache_from: int = 1,
+                probe_progress: bool = False) -> CheckResult:
+    """Check every deck below ``paths``, each in its own project
+    (``deckward.rules.project``).  With ``probe``, the PySCF probes run
+    too and their findings go through the same severity and suppression
+    handling.
 
     ``jobs``: worker processes (0: one per core); ``cache_dir``: a findings
     cache folder (None: no cache).  Both go through
     ``deckward.server.parallel_check``; the findings are the same either
     way.  ``cache_from``: use the cache only from this many decks on (the
-    command line's default cache is not worth opening for one deck).  A
-    loader with unsaved editor text is never cached or shared.
+    command line's default cache is not worth opening for one deck).
+    Projects whose loader holds unsaved editor text are never cached or
+    shared.
 
     Few decks without a cache are checked right here: the single-deck path
     imports neither the parallel checker nor the cache.  ``probe_progress``
     shows each probe calculation on standard error (the display of
     ``deckward run``)."""
-    config = config or config_for(paths, config_path)
+    projects = projects or projects_for(config_path)
     progress = probe_progress_display() if probe and probe_progress else None
-    findings: list[Finding] = list(config.findings)
     files: list[str] = []
-    tasks = []
+    tasks: list[tuple[str, Project]] = []
     skipped: list[str] = []
     for given in paths:
-        for path in discover([given], config, skipped):
+        for path in discover([given], projects, skipped):
             files.append(path)
-            tasks.append((path, root_for(path, config, given)))
+            tasks.append((path, projects.for_path(path, given)))
     require_decks(files, paths, skipped)
-    if (loader is not None and loader.overlay) or len(tasks) < cache_from:
+    findings: list[Finding] = config_findings(project for _, project in tasks)
+    primary = tasks[0][1].config if tasks else Config()  # the configuration a report names
+    loader = projects.loader
+    if loader.overlay or len(tasks) < cache_from:
         cache_dir = None
-    if loader is not None and loader.overlay:
+    if loader.overlay:
         jobs = 1
     if cache_dir is None and (jobs == 1 or len(tasks) < IN_PROCESS_BELOW):
-        own_loader = loader is None
-        loader = loader or Loader()
         shared: set[str] = set()
-        for path, root in tasks:
+        for path, project in tasks:
             try:
-                ws = resolve(path, loader, root)
+                analysis = project.analyse(path, probe=probe, progress=progress)
             except OSError as e:
                 raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
-            if own_loader:
-                release_unshared(loader, ws, shared)
-            extra = []
-            if probe:
-                from deckward.rules.probes import run_probes
-
-                extra = run_probes(ws, config, progress=progress)
-            findings.extend(check_workspace(ws, config, extra=extra, probed=probe))
-        return CheckResult(files, dedupe(findings), config, notes=skipped)
+            if not loader.overlay:
+                release_unshared(loader, analysis.workspace, shared)
+            findings.extend(analysis.findings)
+        return CheckResult(files, dedupe(findings), primary, notes=skipped)
 
     from .parallel_check import DeckUnreadable, Task, check_tasks
 
-    try:
-        found, stats = check_tasks([Task(p, r) for p, r in tasks], config, probe=probe, jobs=jobs,
-                                   cache_dir=cache_dir, loader=loader, progress=progress)
-    except DeckUnreadable as e:
-        raise UsageError(str(e))
-    findings.extend(found)
-    return CheckResult(files, dedupe(findings), config, notes=skipped + list(stats.notes), stats=stats)
+    notes = list(skipped)
+    total = None
+    for project, group in _by_project(tasks):
+        try:
+            found, stats = check_tasks([Task(p, project.root) for p in group], project.config, probe=probe,
+                                       jobs=jobs, cache_dir=cache_dir, progress=progress)
+        except DeckUnreadable as e:
+            raise UsageError(str(e))
+        findings.extend(found)
+        notes.extend(stats.notes)
+        total = stats if total is None else total.plus(stats)
+    return CheckResult(files, dedupe(findings), primary, notes=notes, stats=total)
+
+
+def _by_project(tasks: list[tuple[str, Project]]) -> list[tuple[Project, list[str]]]:
+    """The decks grouped by project, in the order the projects were met (a
+    group shares one configuration, so one pool and one cache key scheme)."""
+    groups: dict[int, tuple[Project, list[str]]] = {}
+    for path, project in tasks:
+        groups.setdefault(id(project), (project, []))[1].append(path)
+    return list(groups.values())
 
 
 def release_unshared(loader: Loader, ws, shared: set[str]) -> None:

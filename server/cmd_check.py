@@ -4,7 +4,7 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import CheckResult, UsageError, check_paths, config_for, root_for
+from .checking import CheckResult, UsageError, check_paths, projects_for
 from .scale_options import add_scale_arguments, scale_options
 from .report_options import add_report_arguments, check_format, report
 
@@ -53,19 +53,9 @@ def _check_standard_input(args):
         text = sys.stdin.buffer.read().decode("utf-8")
     except UnicodeDecodeError as e:
         raise UsageError(f"standard input: not valid UTF-8 (byte {e.start})")
-    from deckward.grammar.resolve import Loader, resolve
-    from deckward.rules.engine import check_workspace, dedupe
+    from deckward.rules.engine import dedupe
 
     path = os.path.normpath(args.stdin_name)
-    loader = Loader({os.path.abspath(path): text})
-    folder = os.path.dirname(os.path.abspath(path))
-    config = config_for([folder], args.config)
-    root = root_for(path, config, folder)
-    ws = resolve(path, loader, root)
-    extra = []
-    if args.probe:
-        from deckward.rules.probes import run_probes
-
-        extra = run_probes(ws, config)
-    findings = list(config.findings) + check_workspace(ws, config, extra=extra, probed=args.probe)
-    return CheckResult([path], dedupe(findings), config)
+    project = projects_for(args.config).for_path(path, None)
+    analysis = project.analyse(path, text=text, probe=args.probe)
+    return CheckResult([path], dedupe(list(analysis.config.findings) + analysis.findings), analysis.config)

@@ -7,7 +7,7 @@ import json
 import os
 import sys
 
-from .checking import UsageError, config_for
+from .checking import UsageError
 
 HELP = "compute a deck's derived quantities along a basis-set ladder, with a complete-basis estimate"
 
@@ -58,22 +58,22 @@ def render(conv) -> str:
 
 
 def run(args) -> int:
-    from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.convergence import LadderError, converge
     from deckward.rules.runner.cache import RunCache
     from deckward.rules.runner.parallel import RunOptions
     from deckward.rules.runner.progress import Progress
 
-    from .checking import root_for
+    from .checking import project_of
     from .run_gate import gate
 
     if not os.path.isfile(args.deck):
         raise UsageError(f"{args.deck}: no such deck file")
     if args.plot and not args.plot.endswith(".svg"):
         raise UsageError(f"{args.plot}: the plot is written as SVG (FILE.svg)")
-    config = config_for([args.deck], args.config)
+    project = project_of(args.deck, args.config)
+    config = project.config
     try:
-        ws = resolve(args.deck, Loader(), root_for(args.deck, config, args.deck))
+        ws = project.resolve(args.deck)
     except OSError as e:
         raise UsageError(f"{args.deck}: cannot be read ({e.strerror or e})")
     refused = gate(ws, config, sys.stderr, what="converge")

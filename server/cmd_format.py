@@ -14,10 +14,9 @@ from deckward.grammar.build import build_deck
 from deckward.grammar.wording import counted
 from deckward.grammar.formatter import format_text
 
-from deckward.grammar.resolve import inside_root
 
 from .atomic_write import WriteRefused, read_snapshot, write_atomically
-from .checking import UsageError, config_for, discover
+from .checking import UsageError, discover, projects_for
 
 HELP = "lay out deck files canonically (aligned columns, one key per line, comments kept)"
 
@@ -29,9 +28,9 @@ def add_arguments(p) -> None:
 
 
 def run(args) -> int:
-    config = config_for(args.paths, None)
     skipped: list[str] = []
-    files = discover(args.paths, config, skipped)
+    projects = projects_for(None)
+    files = discover(args.paths, projects, skipped)
     sys.stderr.write("".join(n + "\n" for n in skipped))
     changed = unchanged = failed = 0
     for path in files:
@@ -61,8 +60,9 @@ def run(args) -> int:
             sys.stdout.write(f"{path}: not in the canonical layout\n")
             continue
         try:
-            if config.root and not inside_root(os.path.realpath(path), os.path.realpath(config.root)):
-                raise WriteRefused(f"it is a link to {os.path.realpath(path)}, outside the workspace {config.root}")
+            project = projects.for_path(path)
+            if project.config_path is not None and not project.contains(path):
+                raise WriteRefused(f"it is a link to {os.path.realpath(path)}, outside the workspace {project.root}")
             write_atomically(snapshot, formatted.encode("utf-8"))
         except WriteRefused as e:
             sys.stderr.write(f"{path}: not written: {e}\n")

@@ -10,8 +10,7 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import (CheckResult, UsageError, config_for, discover, probe_progress_display, require_decks,
-                       root_for)
+from .checking import CheckResult, UsageError, discover, probe_progress_display, projects_for, require_decks
 from .executor_options import add_executor_arguments, executor_from, probes_on
 from .report_options import add_report_arguments, check_format, report
 
@@ -29,29 +28,32 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     check_format(args)
-    config = config_for(args.paths, args.config)
+    projects = projects_for(args.config)
+    config = projects.config_for(args.paths[0], args.paths[0])  # where a `cluster:` section is looked up
     with executor_from(args, config, args.jobs) as executor, probes_on(executor):
-        return _probe_all(args, config)
+        return _probe_all(args, projects)
 
 
-def _probe_all(args, config) -> int:
-    from deckward.grammar.resolve import Loader, resolve
+def _probe_all(args, projects) -> int:
     from deckward.rules.engine import check_workspace, dedupe
+    from deckward.rules.project import config_findings
     from deckward.rules.probes import PROBE_RULES, run_probes, unprobed_reason
     from deckward.rules.runner.cache import RunCache
 
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}
     progress = None if args.quiet else probe_progress_display()
-    loader = Loader()
-    files, findings, notes = [], list(config.findings), []
-    tasks = [(path, given) for given in args.paths for path in discover([given], config, notes)]
+    notes: list[str] = []
+    tasks = [(path, projects.for_path(path, given)) for given in args.paths
+             for path in discover([given], projects, notes)]
     require_decks([p for p, _ in tasks], args.paths, notes)
+    files, findings = [], config_findings(project for _, project in tasks)
     with_states = 0
-    for path, given in tasks:
+    for path, project in tasks:
         files.append(path)
+        config = project.config
         try:
-            ws = resolve(path, loader, root_for(path, config, given))
+            ws = project.resolve(path)
         except OSError as e:
             raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
         with_states += bool(ws.states)
@@ -70,4 +72,5 @@ def _probe_all(args, config) -> int:
         raise UsageError(f"nothing to probe: no deck in {', '.join(args.paths)} has a state")
     if notes and getattr(args, "format", "text") != "text":
         sys.stderr.write("".join(n + "\n" for n in notes))
-    return report(args, CheckResult(files, dedupe(findings), config, notes=notes))
+    primary = tasks[0][1].config if tasks else projects.config_for(args.paths[0], args.paths[0])
+    return report(args, CheckResult(files, dedupe(findings), primary, notes=notes))

@@ -12,7 +12,7 @@ from __future__ import annotations
 import os
 import sys
 
-from .checking import UsageError, check_paths, config_for
+from .checking import UsageError, check_paths, projects_for
 from .executor_options import add_executor_arguments, executor_from, probes_on
 from .scale_options import add_scale_arguments, scale_options
 
@@ -38,9 +38,10 @@ def run(args) -> int:
     from .review_batch import build_review
 
     scale = scale_options(args)  # probes run in this process, whatever --jobs says
-    config = config_for(args.paths, args.config)
+    projects = projects_for(args.config)
+    config = projects.config_for(args.paths[0], args.paths[0])  # where a `cluster:` section is looked up
     with executor_from(args, config, max(1, args.jobs)) as executor, probes_on(executor):
-        result = check_paths(args.paths, config=config, probe=args.probe, probe_progress=True, **scale)
+        result = check_paths(args.paths, projects=projects, probe=args.probe, probe_progress=True, **scale)
     review = build_review(result, title=args.title, probed=args.probe)
     _attach_recorded(args, review)
     if args.format == "markdown":

@@ -6,7 +6,7 @@ import json
 import os
 import sys
 
-from .checking import UsageError, config_for
+from .checking import UsageError
 from .executor_options import add_executor_arguments, executor_from
 from .results_view import add_database_arguments, earlier_values, open_database
 
@@ -62,20 +62,20 @@ def options_from(args, config):
 
 
 def run(args) -> int:
-    from deckward.grammar.resolve import Loader, resolve
     from deckward.rules.runner.cache import RunCache
     from deckward.rules.runner.results import format_report
     from deckward.rules.runner.run import run_workspace
 
-    from .checking import root_for
+    from .checking import project_of
     from .run_gate import gate
 
     if not os.path.isfile(args.deck):
         raise UsageError(f"{args.deck}: no such deck file")
-    config = config_for([args.deck], args.config)
+    project = project_of(args.deck, args.config)
+    config = project.config
     options = options_from(args, config)
     try:
-        ws = resolve(args.deck, Loader(), root_for(args.deck, config, args.deck))
+        ws = project.resolve(args.deck)
     except OSError as e:
         raise UsageError(f"{args.deck}: cannot be read ({e.strerror or e})")
     refused = gate(ws, config, sys.stderr)

@@ -17,12 +17,11 @@ import os
 import sys
 
 from deckward.grammar.build import build_deck
-from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
+from deckward.grammar.resolve import Loader
 from deckward.rules.fixes import DAMAGE_RULES, fix_text, syntax_errors
 
 from .atomic_write import Snapshot, WriteRefused, read_snapshot, write_atomically
-from .checking import CheckResult, UsageError, check_paths, config_for, discover, root_for
+from .checking import CheckResult, UsageError, check_paths, discover, projects_for
 
 
 def unified_diff(path: str, before: str, after: str) -> str:
@@ -61,15 +60,14 @@ def run_fixes(args) -> tuple[CheckResult, str]:
     """Fix every deck named by ``args.paths``; return the final check and
     the diff text (``--diff``) to print before it."""
     dry = bool(args.diff)
-    config = config_for(args.paths, args.config)
-    loader = Loader()
-    decks = _decks(args.paths, config)
-    users = _users_of(decks, loader, config)
+    projects = projects_for(args.config, Loader())
+    decks = _decks(args.paths, projects)
+    users = _users_of(decks)
     notes: list[str] = []
     diffs: list[str] = []
     fixed_total = files_changed = 0
-    for path, given in decks:
-        outcome, diff = _fix_one(path, root_for(path, config, given), config, loader, users, args, notes)
+    for path, project in decks:
+        outcome, diff = _fix_one(path, project, users, args, notes)
         if outcome is not None:
             fixed_total += outcome.count
             files_changed += 1
@@ -79,7 +77,7 @@ def run_fixes(args) -> tuple[CheckResult, str]:
             notes.append(f"deckward: --diff: {_plural(fixed_total, 'fix')} would be applied to "
                          f"{_plural(files_changed, 'file', 's')}; nothing was written")
         fixed_total = 0
-    result = check_paths(args.paths, config=config, loader=Loader(), probe=getattr(args, "probe", False))
+    result = check_paths(args.paths, config_path=args.config, probe=getattr(args, "probe", False))
     result.fixes_applied = fixed_total
     result.notes.extend(notes)
     if notes and getattr(args, "format", "text") != "text":
@@ -87,7 +85,7 @@ def run_fixes(args) -> tuple[CheckResult, str]:
     return result, "".join(diffs)
 
 
-def _fix_one(path, root, config, loader: Loader, users, args, notes: list[str]):
+def _fix_one(path, project, users, args, notes: list[str]):
     """Fix one deck; returns (outcome, diff) when its fixed text was written
     (or, with --diff, would be), else (None, ""); adds notes for refusals."""
     key = os.path.abspath(path)
@@ -102,14 +100,16 @@ def _fix_one(path, root, config, loader: Loader, users, args, notes: list[str]):
                      f"(byte 0x{snapshot.data[e.start]:02x} at offset {e.start})")
         return None, ""
 
+    loader = project.loader
+
     def recheck(text: str):
         loader.overlay[key] = text
-        found = check_workspace(resolve(path, loader, root), config)
-        for user, user_root in users.get(key, ()):
+        found = project.analyse(path).findings
+        for user, user_project in users.get(key, ()):
             # decks that use this file: consulted only to see whether a fix
             # would break them, never as something to fix here
             found.extend(dataclasses.replace(f, fixes=())
-                         for f in check_workspace(resolve(user, loader, user_root), config)
+                         for f in user_project.analyse(user).findings
                          if f.rule in DAMAGE_RULES)
         return found
 
@@ -121,7 +121,7 @@ def _fix_one(path, root, config, loader: Loader, users, args, notes: list[str]):
     if outcome.text == original:
         loader.overlay.pop(key, None)
         return None, ""
-    refusal = _outside(path, root) if not args.diff else None
+    refusal = _outside(path, project.root) if not args.diff else None
     refusal = refusal or _refusal(snapshot, path, original, outcome.text, bool(args.diff))
     if refusal is not None:
         notes.append(f"deckward: refused to write {path}: {refusal}")
@@ -131,30 +131,29 @@ def _fix_one(path, root, config, loader: Loader, users, args, notes: list[str]):
     return outcome, unified_diff(path, original, outcome.text) if args.diff else ""
 
 
-def _decks(paths, config) -> list[tuple[str, str]]:
-    """(deck, the path it was found under) for every deck to fix, once each."""
+def _decks(paths, projects) -> list[tuple[str, object]]:
+    """(deck, its project) for every deck to fix, once each."""
     out, seen = [], set()
     for given in paths:
-        for path in discover([given], config):
+        for path in discover([given], projects):
             key = os.path.abspath(path)
             if key not in seen:
                 seen.add(key)
-                out.append((path, given))
+                out.append((path, projects.for_path(path, given)))
     return out
 
 
-def _users_of(decks, loader: Loader, config) -> dict[str, list[tuple[str, str]]]:
+def _users_of(decks) -> dict[str, list[tuple[str, object]]]:
     """For each file, the checked decks that use it (directly or through
-    another file), with their workspace roots."""
-    users: dict[str, list[tuple[str, str]]] = {}
-    for path, given in decks:
-        root = root_for(path, config, given)
+    another file), with their projects."""
+    users: dict[str, list[tuple[str, object]]] = {}
+    for path, project in decks:
         try:
-            ws = resolve(path, loader, root)
+            ws = project.resolve(path)
         except OSError as e:
             raise UsageError(f"{path}: cannot be read ({e.strerror or e})")
         for used in ws.files[1:]:
-            users.setdefault(os.path.abspath(used.path), []).append((path, root))
+            users.setdefault(os.path.abspath(used.path), []).append((path, project))
     return users
 
 

@@ -64,6 +64,13 @@ class CheckStats:
     workers: int = 1
     notes: list[str] = field(default_factory=list)
 
+    def plus(self, other: "CheckStats") -> "CheckStats":
+        """Both runs' counts together (decks of two projects)."""
+        return CheckStats(self.decks + other.decks, self.checked + other.checked,
+                          self.cache_hits + other.cache_hits, self.cache_misses + other.cache_misses,
+                          self.cache_write_errors + other.cache_write_errors,
+                          max(self.workers, other.workers), self.notes + other.notes)
+
 
 def used_paths(ws: Workspace) -> list[str]:
     """Every file whose contents can change this deck's findings: the deck,

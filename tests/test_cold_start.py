@@ -36,6 +36,7 @@ ALLOWED_DECKWARD = {
     "deckward.rules.catalogue", "deckward.rules.catalogue._basis_targets", "deckward.rules.catalogue._examples",
     "deckward.rules.config", "deckward.rules.context", "deckward.rules.deck_facts", "deckward.rules.diffuse",
     "deckward.rules.edits", "deckward.rules.elements", "deckward.rules.engine", "deckward.rules.geometry",
+    "deckward.rules.project",
     "deckward.rules.ion_states", "deckward.rules.methods", "deckward.rules.registry",
     "deckward.rules.reference_data", "deckward.rules.species_facts",
     "deckward.rules.state_text", "deckward.rules.suppressions", "deckward.rules.units",

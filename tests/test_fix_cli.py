@@ -12,6 +12,7 @@ import pytest
 
 from deckward.grammar.build import build_deck
 from deckward.grammar.findings import Applicability
+from deckward.rules.project import Project
 from deckward.rules.registry import all_rules
 from deckward.server import fixing
 from deckward.server.cli import main
@@ -191,16 +192,16 @@ def test_read_only_file_is_refused_and_untouched(tmp_path):
 def test_file_changed_during_the_run_is_refused_and_untouched(tmp_path, monkeypatch):
     deck, info = fixable_deck(tmp_path)
     edited = info.bad_example + "# saved by an editor meanwhile\n"
-    real = fixing.check_workspace
+    real = Project.analyse
     calls = []
 
-    def check_and_meddle(*a, **k):
+    def check_and_meddle(self, *a, **k):
         calls.append(1)
         if len(calls) == 1:  # another program saves the file while deckward works
             deck.write_bytes(edited.encode())
-        return real(*a, **k)
+        return real(self, *a, **k)
 
-    monkeypatch.setattr(fixing, "check_workspace", check_and_meddle)
+    monkeypatch.setattr(Project, "analyse", check_and_meddle)
     status, out = cli("check", "--fix", str(deck))
     assert deck.read_bytes() == edited.encode()
     assert f"deckward: refused to write {deck}: it changed on disk while being fixed" in out.splitlines()

@@ -17,7 +17,7 @@ from lsprotocol import types as t
 from pygls.exceptions import JsonRpcInvalidParams
 
 from deckward.grammar import model as m
-from deckward.grammar.resolve import Definition, Workspace, resolve
+from deckward.grammar.resolve import Definition, Workspace
 from deckward.grammar.scanner import STATEMENT_KEYWORDS
 
 from .core import DeckServer, target_at
@@ -129,8 +129,7 @@ def references_of(server: DeckServer, analysis: "Analysis", key: DefKey,
             if path == analysis.path:
                 continue
             try:
-                config = store.config_for(path)
-                workspaces.append(resolve(path, store.loader, store.root_for(path, config)))
+                workspaces.append(store.project_for(path).resolve(path))
             except OSError:
                 continue
     maps: dict[str, PositionMap] = {}

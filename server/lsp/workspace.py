@@ -1,9 +1,11 @@
 """The server's view of the project: open buffers, configuration, analyses.
 
-Checking an open document is the command line's check on the buffer's text:
-one ``Loader`` whose overlay holds every open buffer (so a deck that uses an
-unsaved file sees the unsaved text), ``resolve`` and ``check_workspace``.
-``deckward.yaml`` is found like the command line finds it and re-read when
+Checking an open document is the command line's check on the buffer's text,
+through the same ``deckward.rules.project.Projects``: one ``Loader`` whose
+overlay holds every open buffer (so a deck that uses an unsaved file sees the
+unsaved text); the workspace root and ``deckward.yaml`` are found exactly as
+the command line finds them (the client's workspace folders play the part of
+the folders named on the command line), and a configuration is re-read when
 its modification time changes or the client reports a change.  Each
 analysis remembers the files it read, so that editing one file re-checks
 the open decks that use it.
@@ -20,9 +22,9 @@ from typing import Callable, Iterator, Optional
 from pygls.uris import from_fs_path, to_fs_path
 
 from deckward.grammar.findings import Finding
-from deckward.grammar.resolve import Loader, Workspace, resolve
-from deckward.rules.config import CONFIG_NAME, Config, find_config, load_config
-from deckward.rules.engine import check_workspace, known_rule_ids
+from deckward.grammar.resolve import Workspace
+from deckward.rules.config import CONFIG_NAME, Config
+from deckward.rules.project import Project, Projects
 
 from .positions import UTF16, PositionMap
 
@@ -116,12 +118,20 @@ class DeckWorkspace:
 
     def __init__(self, documents: Callable[[], Mapping] = dict) -> None:
         self.overlay = Buffers(documents)
-        self.loader = Loader(self.overlay)
-        self.folders: list[str] = []
+        self.projects = Projects(overlay=self.overlay, live=True)
+        self.loader = self.projects.loader
         self.encoding = UTF16
         self.analyses: dict[str, Analysis] = {}
         self.lock = threading.Lock()
-        self._configs: dict[str, tuple[tuple, Config]] = {}
+
+    @property
+    def folders(self) -> list[str]:
+        return self.projects.folders
+
+    @folders.setter
+    def folders(self, folders: list[str]) -> None:
+        self.projects.folders = [os.path.abspath(f) for f in folders]
+        self.projects.reload()
 
     # -- buffers ----------------------------------------------------------
     def open_buffer(self, uri: str) -> None:
@@ -134,36 +144,16 @@ class DeckWorkspace:
         self.analyses.pop(uri, None)
 
     # -- configuration ----------------------------------------------------
+    def project_for(self, path: str) -> Project:
+        return self.projects.for_path(path)
+
     def config_for(self, path: str) -> Config:
         """The configuration that applies to ``path``, re-read when the file
         changed on disk."""
-        found = find_config(path)
-        if found is None:
-            return Config()
-        try:
-            st = os.stat(found)
-            key = (st.st_mtime_ns, st.st_size)
-        except OSError:
-            key = None
-        cached = self._configs.get(found)
-        if cached is not None and cached[0] == key:
-            return cached[1]
-        config = load_config(found, known_rule_ids())
-        self._configs[found] = (key, config)
-        return config
+        return self.projects.for_path(path).config
 
     def forget_configs(self) -> None:
-        self._configs.clear()
-
-    def root_for(self, path: str, config: Config) -> str:
-        """The workspace root: the configuration's folder, else the client's
-        workspace folder holding the file, else the file's folder."""
-        if config.root:
-            return config.root
-        for folder in sorted(self.folders, key=len, reverse=True):
-            if os.path.commonpath([folder, path]) == folder:
-                return folder
-        return os.path.dirname(path)
+        self.projects.reload()
 
     # -- checking ---------------------------------------------------------
     def analyse(self, uri: str, text: str, version: Optional[int]) -> Analysis:
@@ -171,10 +161,9 @@ class DeckWorkspace:
         path = uri_to_path(uri)
         clean = checkable(text)
         with self.lock:
-            config = self.config_for(path)
-            ws = resolve(path, self.loader, self.root_for(path, config), text=clean)
-            findings = check_workspace(ws, config)
-            analysis = Analysis(uri, path, version, text, ws, findings, config,
+            checked = self.project_for(path).analyse(path, text=clean)
+            ws = checked.workspace
+            analysis = Analysis(uri, path, version, text, ws, checked.findings, checked.config,
                                 PositionMap(clean, self.encoding, ws.root.index))
         return analysis
 
