@@ -28,10 +28,10 @@ sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."
 
 from runner_helpers import workspace  # noqa: E402
 
-from deckward.rules.runner.cache import RunCache  # noqa: E402
-from deckward.rules.runner.dask_executor import DaskExecutor  # noqa: E402
-from deckward.rules.runner.parallel import RunOptions  # noqa: E402
-from deckward.rules.runner.run import run_workspace  # noqa: E402
+from deckward.rules.compute.runner.cache import RunCache  # noqa: E402
+from deckward.rules.compute.runner.dask_executor import DaskExecutor  # noqa: E402
+from deckward.rules.compute.runner.parallel import RunOptions  # noqa: E402
+from deckward.rules.compute.runner.run import run_workspace  # noqa: E402
 
 LENGTHS = (1.10, 1.12, 1.14, 1.16, 1.18, 1.20, 1.22, 1.24)  # angstrom, around CN's 1.1718
 

@@ -1,4 +1,4 @@
-"""Calibrate and measure the diffuse criterion (rules/diffuse.py) against
+"""Calibrate and measure the diffuse criterion (rules/catalogue/basis/diffuse.py) against
 computed electron affinities.
 
     python bench/diffuse_calibration.py                 # compute missing cases, then judge
@@ -16,11 +16,11 @@ criterion's own spread across basis families is about that size.
 
 The verdict: what the rule anion-lacks-diffuse says for the anion, from the
 library index (the rule's own data path), with the species' measured
-electron affinity from rules/reference_data.py and the method (Hartree-Fock
+electron affinity from rules/knowledge/reference_data.py and the method (Hartree-Fock
 or MP2).  "Flagged" means a finding at any severity; "error" means the
 severity the rule gives in electron-affinity work.
 
-``--fit`` scans the calibrated factors n_l of rules/diffuse.py and prints
+``--fit`` scans the calibrated factors n_l of rules/catalogue/basis/diffuse.py and prints
 the agreement each value would give (how the constants were chosen).
 """
 from __future__ import annotations
@@ -62,7 +62,7 @@ def truth_of(error: float) -> str:
 
 
 def _species(sp: str):
-    from deckward.rules import reference_data
+    from deckward.rules.knowledge import reference_data
 
     rows = [t.split() for t in grid.SPECIES[sp][0].split(";")]
     return reference_data.identify([r[0] for r in rows], [tuple(float(x) for x in r[1:]) for r in rows])
@@ -70,8 +70,9 @@ def _species(sp: str):
 
 def judge_case(method: str, sp: str, word: str, binding_known: bool = True, params=None):
     """(flagged, clearly inadequate, limiting text, binding) for one case, as the rule sees it."""
-    from deckward.rules import basis_library, diffuse
-    from deckward.rules.catalogue.anion_lacks_diffuse import clearly_inadequate
+    from deckward.rules.knowledge import basis_library
+    from deckward.rules.catalogue.basis import diffuse
+    from deckward.rules.catalogue.basis.anion_lacks_diffuse import clearly_inadequate
 
     species = _species(sp) if binding_known else None
     binding = None
@@ -177,7 +178,7 @@ def disagreements(rows: list[Judged]) -> list[str]:
 
 def fit(data: dict) -> list[str]:
     """Agreement as each calibrated factor is varied alone (the others kept)."""
-    from deckward.rules import diffuse
+    from deckward.rules.catalogue.basis import diffuse
 
     lines = []
     scans = [("EFOLDS", 0, "hf", [2.4, 2.8, 3.0, 3.2, 3.4, 3.8, 4.4, 5.0, 6.0]),

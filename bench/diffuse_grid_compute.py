@@ -130,7 +130,7 @@ def symbols_of(atom: str) -> list[str]:
 
 
 def _shells(word: str, symbol: str):
-    from deckward.rules.runner.pyscf_build import BasisUnavailable, library_shells
+    from deckward.rules.compute.runner.pyscf_build import BasisUnavailable, library_shells
 
     try:
         return library_shells(word, symbol)

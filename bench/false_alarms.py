@@ -18,7 +18,7 @@ from false_alarm_corpus import KNOWN_TRUE, corpus, findings_of  # noqa: E402
 
 
 def main() -> None:
-    from deckward.rules.registry import all_rules
+    from deckward.rules.engine.registry import all_rules
 
     rules = sys.argv[1:] or [r.id for r in all_rules().values() if r.check is not None]
     decks = corpus()

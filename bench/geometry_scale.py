@@ -47,8 +47,8 @@ def main() -> None:
 
     from deckward.grammar.parser import clear_parse_cache, get_parser
     from deckward.grammar.resolve import Loader, resolve
-    from deckward.rules.engine import check_workspace
-    from deckward.rules.registry import all_rules
+    from deckward.rules.engine.checker import check_workspace
+    from deckward.rules.engine.registry import all_rules
 
     lark_parser = get_parser()
     all_rules()

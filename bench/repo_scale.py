@@ -89,7 +89,7 @@ def main() -> None:
     args = ap.parse_args()
 
     from deckward.grammar.parser import get_parser
-    from deckward.rules.registry import all_rules
+    from deckward.rules.engine.registry import all_rules
     from deckward.server.checking import check_paths
     from deckward.server.parallel_check import default_jobs
 

@@ -39,8 +39,8 @@ def direct() -> float:
 
 def through_runner(path: str, folder: str) -> float:
     from deckward.grammar.resolve import Loader, resolve
-    from deckward.rules.runner.cache import RunCache
-    from deckward.rules.runner.run import run_workspace
+    from deckward.rules.compute.runner.cache import RunCache
+    from deckward.rules.compute.runner.run import run_workspace
 
     ws = resolve(path, Loader(), folder)
     report = run_workspace(ws, RunCache(os.path.join(folder, "cache"), enabled=False))

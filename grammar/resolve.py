@@ -237,7 +237,7 @@ def resolve(path: str, loader: Loader, root_dir: str, text: Optional[str] = None
     """Load ``path`` (or ``text`` as that file), its ``use`` files, and link
     every name, inside the workspace ``root_dir`` (which the caller chooses:
     grammar does not look for configuration files; see
-    ``deckward.rules.project``).  Never raises for problems in the decks:
+    ``deckward.rules.engine.project``).  Never raises for problems in the decks:
     they become findings.  Raises OSError only when the root file cannot be
     read."""
     root = loader.parse_text(path, text) if text is not None else loader.load(path)

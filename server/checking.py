@@ -11,9 +11,9 @@ from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Severity
 from deckward.grammar.resolve import Loader, shown
-from deckward.rules.config import Config
-from deckward.rules.engine import dedupe
-from deckward.rules.project import Project, Projects, config_findings
+from deckward.rules.engine.config import Config
+from deckward.rules.engine.checker import dedupe
+from deckward.rules.engine.project import Project, Projects, config_findings
 
 from .scale_options import IN_PROCESS_BELOW
 
@@ -125,7 +125,7 @@ def check_paths(paths: list[str], config_path: Optional[str] = None, projects: O
                 probe: bool = False, jobs: int = 1, cache_dir: Optional[str] = None, cache_from: int = 1,
                 probe_progress: bool = False) -> CheckResult:
     """Check every deck below ``paths``, each in its own project
-    (``deckward.rules.project``).  With ``probe``, the PySCF probes run
+    (``deckward.rules.engine.project``).  With ``probe``, the PySCF probes run
     too and their findings go through the same severity and suppression
     handling.
 
@@ -211,7 +211,7 @@ def release_unshared(loader: Loader, ws, shared: set[str]) -> None:
 
 def probe_progress_display():
     """The runner's progress display for probe calculations, on standard error."""
-    from deckward.rules.runner.progress import Progress
+    from deckward.rules.compute.runner.progress import Progress
 
     return Progress(0, enabled=True)
 

@@ -53,7 +53,7 @@ def _check_standard_input(args):
         text = sys.stdin.buffer.read().decode("utf-8")
     except UnicodeDecodeError as e:
         raise UsageError(f"standard input: not valid UTF-8 (byte {e.start})")
-    from deckward.rules.engine import dedupe
+    from deckward.rules.engine.checker import dedupe
 
     path = os.path.normpath(args.stdin_name)
     project = projects_for(args.config).for_path(path, None)

@@ -1,6 +1,6 @@
 """``deckward converge DECK``: the deck's derived quantities along a basis
 ladder of its family, with a complete-basis estimate (see
-``rules/convergence.py`` for the ladders and the published extrapolations)."""
+``rules/compute/convergence.py`` for the ladders and the published extrapolations)."""
 from __future__ import annotations
 
 import json
@@ -29,9 +29,9 @@ def _fmt(v, digits=6):
 
 
 def render(conv) -> str:
-    from deckward.rules import units
-    from deckward.rules.comparison import CAUTION
-    from deckward.rules.runner.results import CAUTION as RUN_CAUTION, _table
+    from deckward.rules.knowledge import units
+    from deckward.rules.compute.comparison import CAUTION
+    from deckward.rules.compute.runner.results import CAUTION as RUN_CAUTION, _table
 
     names = [d.name for d in conv.steps[0].derived]
     unit_names = [d.unit for d in conv.steps[0].derived]
@@ -58,10 +58,10 @@ def render(conv) -> str:
 
 
 def run(args) -> int:
-    from deckward.rules.convergence import LadderError, converge
-    from deckward.rules.runner.cache import RunCache
-    from deckward.rules.runner.parallel import RunOptions
-    from deckward.rules.runner.progress import Progress
+    from deckward.rules.compute.convergence import LadderError, converge
+    from deckward.rules.compute.runner.cache import RunCache
+    from deckward.rules.compute.runner.parallel import RunOptions
+    from deckward.rules.compute.runner.progress import Progress
 
     from .checking import project_of
     from .run_gate import gate

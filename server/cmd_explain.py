@@ -12,7 +12,7 @@ def add_arguments(p) -> None:
 
 def run(args) -> int:
     from deckward.grammar.build import did_you_mean
-    from deckward.rules.registry import all_rules
+    from deckward.rules.engine.registry import all_rules
 
     from .rule_docs import explain
 

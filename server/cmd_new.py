@@ -1,5 +1,5 @@
 """``deckward new --goal ... FILE.xyz -o DECK``: write a first deck that
-``deckward check`` accepts with no warning (see ``rules/deck_writer.py``
+``deckward check`` accepts with no warning (see ``rules/fixes/deck_writer.py``
 for what goes in it).  The deck is written atomically and never over an
 existing file unless ``--force`` is given."""
 from __future__ import annotations
@@ -13,7 +13,7 @@ HELP = "write a first deck for an EA, IE or gap of the molecule in an .xyz file"
 
 
 def add_arguments(p) -> None:
-    from deckward.rules.deck_writer import DEFAULT_BASIS, DEFAULT_METHOD, GOALS, KINDS
+    from deckward.rules.fixes.deck_writer import DEFAULT_BASIS, DEFAULT_METHOD, GOALS, KINDS
 
     p.add_argument("xyz", metavar="FILE.xyz", help="the molecule's geometry (XYZ, angstrom)")
     p.add_argument("--goal", required=True, choices=GOALS, help="the quantity to compute")
@@ -30,7 +30,7 @@ def add_arguments(p) -> None:
 def run(args) -> int:
     from deckward.grammar.xyz import parse_xyz
     from deckward.grammar.resolve import Loader
-    from deckward.rules.deck_writer import DeckRequestError, write_deck
+    from deckward.rules.fixes.deck_writer import DeckRequestError, write_deck
 
     from .atomic_write import WriteRefused, write_new
 

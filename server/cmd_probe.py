@@ -35,10 +35,10 @@ def run(args) -> int:
 
 
 def _probe_all(args, projects) -> int:
-    from deckward.rules.engine import check_workspace, dedupe
-    from deckward.rules.project import config_findings
-    from deckward.rules.probes import PROBE_RULES, run_probes, unprobed_reason
-    from deckward.rules.runner.cache import RunCache
+    from deckward.rules.engine.checker import check_workspace, dedupe
+    from deckward.rules.engine.project import config_findings
+    from deckward.rules.compute.probes import PROBE_RULES, run_probes, unprobed_reason
+    from deckward.rules.compute.runner.cache import RunCache
 
     cache = RunCache(os.path.join(args.cache_dir, "runs") if args.cache_dir else None)
     ids = {info.id for info in PROBE_RULES}

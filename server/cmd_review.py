@@ -70,7 +70,7 @@ def run(args) -> int:
 
 def _attach_recorded(args, review) -> None:
     """Recorded derived values per deck, when there is a database to read."""
-    from deckward.rules.runner.results_db import DatabaseError, ResultsDB, default_db_path
+    from deckward.rules.compute.runner.results_db import DatabaseError, ResultsDB, default_db_path
 
     path = args.db or default_db_path()
     if not os.path.isfile(path):

@@ -42,7 +42,7 @@ def _positive(name: str, value):
 def _bounded_threads(threads, name: str) -> None:
     """OpenMP crashes (segfaults) when asked for tens of thousands of
     threads; more than a few per core only slows a calculation."""
-    from deckward.rules.runner.limits import max_threads
+    from deckward.rules.compute.runner.limits import max_threads
 
     if threads is not None and threads > max_threads():
         raise UsageError(f"{name} {threads:g} is more than this machine can use ({os.cpu_count() or 1} cores); "
@@ -50,7 +50,7 @@ def _bounded_threads(threads, name: str) -> None:
 
 
 def options_from(args, config):
-    from deckward.rules.runner.parallel import RunOptions
+    from deckward.rules.compute.runner.parallel import RunOptions
 
     run_cfg = config.run
     jobs = _positive("--jobs", args.jobs) or int(run_cfg.get("jobs", 1))
@@ -62,9 +62,9 @@ def options_from(args, config):
 
 
 def run(args) -> int:
-    from deckward.rules.runner.cache import RunCache
-    from deckward.rules.runner.results import format_report
-    from deckward.rules.runner.run import run_workspace
+    from deckward.rules.compute.runner.cache import RunCache
+    from deckward.rules.compute.runner.results import format_report
+    from deckward.rules.compute.runner.run import run_workspace
 
     from .checking import project_of
     from .run_gate import gate
@@ -83,7 +83,7 @@ def run(args) -> int:
         return refused
     cache_dir = os.path.join(args.cache_dir, "runs") if args.cache_dir else None
     cache = RunCache(cache_dir, enabled=not args.no_cache)
-    from deckward.rules.runner.limits import check_before_running
+    from deckward.rules.compute.runner.limits import check_before_running
 
     problem = check_before_running(ws, cache, config, options, all_states=args.all, force=args.force)
     if problem is not None:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import io
 
-from deckward.rules import units
+from deckward.rules.knowledge import units
 
 MIN_BAND_EV = 0.01  # half-width drawn for a very precise measurement (display only, no source)
 

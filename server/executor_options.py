@@ -42,7 +42,7 @@ def executor_from(args, config, jobs: int = 1):
     if not scheduler and not cluster:
         yield None
         return
-    from deckward.rules.runner import dask_executor as de
+    from deckward.rules.compute.runner import dask_executor as de
 
     try:
         if scheduler:
@@ -78,7 +78,7 @@ def probes_on(executor):
     if executor is None:
         yield
         return
-    from deckward.rules.runner.executors import set_probe_executor
+    from deckward.rules.compute.runner.executors import set_probe_executor
 
     set_probe_executor(executor)
     try:

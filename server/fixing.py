@@ -1,7 +1,7 @@
 """``deckward check --fix / --fix-risky / --diff``: fix files, never damage one.
 
 Each deck is read once as bytes, fixed on its own text with the shared fix
-loop (``deckward.rules.fixes``), re-checked through a ``Loader`` overlay so
+loop (``deckward.rules.fixes.apply``), re-checked through a ``Loader`` overlay so
 that decks using an already fixed file see its new text, then either shown
 as a unified diff (``--diff``: nothing is written) or written atomically.
 A file that is not valid UTF-8, changed on disk meanwhile, is read-only, or
@@ -18,7 +18,7 @@ import sys
 
 from deckward.grammar.build import build_deck
 from deckward.grammar.resolve import Loader
-from deckward.rules.fixes import DAMAGE_RULES, fix_text, syntax_errors
+from deckward.rules.fixes.apply import DAMAGE_RULES, fix_text, syntax_errors
 
 from .atomic_write import Snapshot, WriteRefused, read_snapshot, write_atomically
 from .checking import CheckResult, UsageError, check_paths, discover, projects_for

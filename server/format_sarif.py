@@ -19,7 +19,7 @@ from urllib.parse import quote
 
 from deckward import __version__
 from deckward.grammar.findings import Finding, RuleInfo, Severity, Span
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.registry import all_rules
 
 from .checking import CheckResult
 from .rule_docs import rule_url

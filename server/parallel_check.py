@@ -28,8 +28,8 @@ from typing import Optional
 
 from deckward.grammar.findings import Finding
 from deckward.grammar.resolve import Loader, Workspace, resolve
-from deckward.rules.config import Config
-from deckward.rules.engine import check_workspace
+from deckward.rules.engine.config import Config
+from deckward.rules.engine.checker import check_workspace
 
 from .checking import release_unshared
 from .findings_cache import FindingsCache, config_fingerprint, entry_key
@@ -106,7 +106,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool,
         raise DeckUnreadable(task.path, str(e.strerror or e))
     extra: list[Finding] = []
     if probe:
-        from deckward.rules.probes import run_probes
+        from deckward.rules.compute.probes import run_probes
 
         extra = run_probes(ws, config, progress=progress)
     return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws), ws
@@ -176,7 +176,7 @@ def _warm_up() -> None:
     """Load the parser tables and import every rule before the workers
     start: forked workers then share them instead of each loading its own."""
     from deckward.grammar.parser import get_parser
-    from deckward.rules.registry import static_rules
+    from deckward.rules.engine.registry import static_rules
 
     get_parser()
     static_rules()

@@ -27,7 +27,7 @@ def add_database_arguments(p) -> None:
 
 
 def database_path(args, cache_folder: Optional[str] = None) -> str:
-    from deckward.rules.runner.results_db import default_db_path
+    from deckward.rules.compute.runner.results_db import default_db_path
 
     return args.db or default_db_path(cache_folder)
 
@@ -38,7 +38,7 @@ def open_database(args, cache_folder: Optional[str] = None, readonly: bool = Fal
     if getattr(args, "no_record", False):
         yield None
         return
-    from deckward.rules.runner.results_db import DatabaseError, ResultsDB
+    from deckward.rules.compute.runner.results_db import DatabaseError, ResultsDB
 
     try:
         db = ResultsDB(database_path(args, cache_folder), readonly=readonly)
@@ -117,7 +117,7 @@ def render(states: list[dict], derived: list[dict], fmt: str) -> str:
 
 
 def _table(s_rows: list[dict], d_rows: list[dict]) -> str:
-    from deckward.rules.runner.results import _table as table
+    from deckward.rules.compute.runner.results import _table as table
 
     out = []
     cwd = os.getcwd()

@@ -13,8 +13,8 @@ from dataclasses import dataclass, field
 from typing import Optional
 
 from deckward.grammar.findings import Finding, Fix, RuleInfo, Severity
-from deckward.rules.edits import OverlappingEdits, apply_edits
-from deckward.rules.registry import get as get_rule
+from deckward.rules.fixes.edits import OverlappingEdits, apply_edits
+from deckward.rules.engine.registry import get as get_rule
 
 from .checking import CheckResult
 
@@ -201,7 +201,7 @@ def fix_diff(fix: Fix, texts: dict[str, Optional[str]], context: int = 2) -> str
 def experiment_caution(finding: Finding) -> str:
     """The caution that goes beside a comparison with experiment ('' when
     the finding's evidence has none)."""
-    from deckward.rules.comparison import CAUTION
+    from deckward.rules.compute.comparison import CAUTION
 
     return CAUTION if any(k == "experimental_ev" for k, _ in finding.evidence) else ""
 

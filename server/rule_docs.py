@@ -10,7 +10,7 @@ import os
 import sys
 
 from deckward.grammar.findings import RuleInfo
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.registry import all_rules
 
 CATEGORY_TITLES = {
     "language": "The deck language",

@@ -21,7 +21,7 @@ def _line(f: Finding) -> str:
 def gate(ws, config, stream: TextIO, what: str = "run") -> Optional[int]:
     """None when the deck may be run; otherwise the exit status, after
     writing why to ``stream``.  Warnings are written either way."""
-    from deckward.rules.engine import check_workspace
+    from deckward.rules.engine.checker import check_workspace
 
     if not ws.states:
         stream.write(f"deckward: nothing to {what}: {ws.path} has no state (a state block says what to compute)\n")

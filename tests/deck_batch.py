@@ -61,7 +61,7 @@ DECKS = {
 
 
 def config_text() -> str:
-    from deckward.rules.engine import known_rule_ids
+    from deckward.rules.engine.checker import known_rule_ids
 
     off = sorted(known_rule_ids() - KEEP)
     return "rules:\n" + "".join(f"  {rule}: off\n" for rule in off)

@@ -14,8 +14,8 @@ from dataclasses import dataclass
 from typing import Optional
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.checker import check_workspace
+from deckward.rules.engine.registry import all_rules
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 EXAMPLES = os.path.join(ROOT, "examples")

@@ -20,9 +20,9 @@ LAYER_ORDER = ("grammar", "rules", "server")
 HEAVY = ("pyscf", "numpy", "scipy", "matplotlib", "dask", "distributed", "basis_set_exchange", "geometric")
 # What `deckward check` and the language server load to give findings as one
 # types, and every command module (the CLI builds all their parsers at start).
-TYPING_PATH_ROOTS = ("deckward.grammar", "deckward.rules.engine", "deckward.rules.registry",
-                     "deckward.rules.catalogue", "deckward.server.cli", "deckward.server.cmd_",
-                     "deckward.server.lsp")
+TYPING_PATH_ROOTS = ("deckward.grammar", "deckward.rules.knowledge", "deckward.rules.fixes",
+                     "deckward.rules.catalogue", "deckward.rules.engine", "deckward.server.cli",
+                     "deckward.server.cmd_", "deckward.server.lsp")
 
 
 @dataclass(frozen=True)
@@ -130,4 +130,52 @@ def heavy_on_typing_path(root: str) -> list[str]:
             for target in with_parents(imp.imported):
                 if target in known and target not in seen:
                     stack.append((target, chain + [target]))
+    return sorted(set(problems))
+
+
+# Inside rules/: what each part may import (besides itself and grammar).
+# knowledge is the floor; the catalogue builds findings with the engine's
+# context and the fixes' edits; the engine discovers the catalogue; the
+# PySCF layer (compute) sits on top and is reached from below only inside
+# functions (the probes of a `--probe` check, the probe rules' ids).
+RULES_PARTS = ("knowledge", "fixes", "catalogue", "engine", "compute")
+RULES_MAY_IMPORT = {
+    "knowledge": set(),
+    "fixes": {"knowledge"},
+    "catalogue": {"knowledge", "fixes", "engine.context"},
+    "engine": {"knowledge", "fixes", "catalogue"},
+    "compute": {"knowledge", "fixes", "catalogue", "engine"},
+}
+LAZY_ONLY = {"compute"}
+
+
+def rules_part_of(module: str) -> str | None:
+    parts = module.split(".")
+    if parts[:2] != ["deckward", "rules"] or len(parts) < 3 or parts[2] not in RULES_PARTS:
+        return None
+    return parts[2]
+
+
+def rules_part_edges(root: str) -> list[str]:
+    """Imports between the parts of rules/ that RULES_MAY_IMPORT does not
+    allow; an import of compute from another part is allowed only inside a
+    function."""
+    problems = []
+    for module, path in sorted(modules(root).items()):
+        mine = rules_part_of(module)
+        if mine is None:
+            continue
+        for imp in imports_of(module, path):
+            theirs = rules_part_of(imp.imported)
+            if theirs is None or theirs == mine:
+                continue
+            allowed = RULES_MAY_IMPORT[mine]
+            target = ".".join(imp.imported.split(".")[2:])
+            ok = theirs in allowed or any(target == a or target.startswith(a + ".") for a in allowed)
+            if theirs in LAZY_ONLY and not imp.top_level:
+                ok = True
+            if not ok:
+                rel = os.path.relpath(path, root)
+                where = "at module level " if imp.top_level else ""
+                problems.append(f"{rel}:{imp.line}: {module} ({mine}) imports {where}{imp.imported} ({theirs})")
     return sorted(set(problems))

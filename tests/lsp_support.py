@@ -20,7 +20,7 @@ def write_workspace(folder, files: dict, keep=("restricted-open-shell",)) -> Non
     """Write ``files`` and a deckward.yaml that turns off every catalogue
     rule not in ``keep`` (rules are added all the time; the tests assert on
     exact findings of the rules they name)."""
-    from deckward.rules.registry import all_rules
+    from deckward.rules.engine.registry import all_rules
 
     language = {"syntax-error", "unknown-key", "duplicate-key", "invalid-value", "undefined-name",
                 "duplicate-name", "use-outside-workspace", "internal-error"}

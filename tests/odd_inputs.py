@@ -15,7 +15,7 @@ import random
 import traceback
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
+from deckward.rules.engine.checker import check_workspace
 
 ODD_STRINGS = [
     "", "a\x00b.deck", "\x00", "\ud800", "x\udfffy", "\udcff.deck", "\ud83d", "\x1b[2J", "\x7f", "\u2028",

@@ -5,7 +5,7 @@ import os
 import tempfile
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
+from deckward.rules.engine.checker import check_workspace
 
 
 def check_text(text: str, select=None, name: str = "deck.deck", files: dict | None = None):

@@ -22,8 +22,8 @@ def workspace(folder, text: str, name: str = "deck.deck"):
 
 
 def run_text(folder, text: str, all_states: bool = False, options=None, cache_dir=None):
-    from deckward.rules.runner.cache import RunCache
-    from deckward.rules.runner.run import run_workspace
+    from deckward.rules.compute.runner.cache import RunCache
+    from deckward.rules.compute.runner.run import run_workspace
 
     ws = workspace(folder, text)
     cache = RunCache(str(cache_dir or os.path.join(str(folder), "cache")))

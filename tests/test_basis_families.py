@@ -2,7 +2,7 @@
 
 import pytest
 
-from deckward.rules import basis_families, basis_library
+from deckward.rules.knowledge import basis_families, basis_library
 
 AUG_PAIRS = sorted(basis_families.AUGMENTED.items())
 TZ_PAIRS = sorted(basis_families.TRIPLE_ZETA.items())
@@ -28,7 +28,7 @@ def test_augmented_counterpart_is_more_diffuse(pair):
     assert shared, "the pair has no element in common"
     symbols = [s for s in ("O", "Cl") if s in shared]
     if not symbols:
-        from deckward.rules import elements
+        from deckward.rules.knowledge import elements
 
         symbols = [min((s for s in shared if s not in ("H", "He")), key=lambda s: elements.lookup(s).z)]
     checked = 0

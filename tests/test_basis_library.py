@@ -8,8 +8,8 @@ import warnings
 
 import pytest
 
-from deckward.rules import basis_library as bl
-from deckward.rules import build_data
+from deckward.rules.knowledge import basis_library as bl
+from build_data_script import build_data
 
 pyscf_basis = pytest.importorskip("pyscf.gto.basis")
 from pyscf import gto  # noqa: E402
@@ -255,7 +255,7 @@ def test_stored_index_matches_installed_pyscf():
     version_note = (
         f"index built with PySCF {stored['pyscf_version']}, installed PySCF {pyscf.__version__}"
         + ("" if stored["pyscf_version"] == pyscf.__version__ else " (VERSIONS DIFFER)")
-        + ": run `python -m deckward.rules.build_data` to regenerate"
+        + ": run `python bench/build_data.py` to regenerate"
     )
     headers, records = build_data.basis_entries(only=set(SAMPLE))
     assert set(headers) == set(SAMPLE), version_note
@@ -283,8 +283,8 @@ def test_every_pyscf_alias_is_a_word(pyscf_library_only):
 
 def test_typing_path_never_imports_pyscf():
     code = (
-        "import sys, deckward.rules.basis_library as b, deckward.rules.basis_families as f, "
-        "deckward.rules.elements as e, deckward.rules.methods as m, deckward.rules.units as u\n"
+        "import sys, deckward.rules.knowledge.basis_library as b, deckward.rules.knowledge.basis_families as f, "
+        "deckward.rules.knowledge.elements as e, deckward.rules.knowledge.methods as m, deckward.rules.knowledge.units as u\n"
         "b.lookup('cc-pvdz'); b.element_data('6-311++g(2df,2pd)', 'O'); b.closest('ccpvdzz')\n"
         "f.augmented_counterpart('6-31g*'); e.lookup('Cl'); m.lookup('b3lyp')\n"
         "assert 'pyscf' not in sys.modules, 'pyscf was imported'\n"
@@ -303,7 +303,7 @@ def test_stored_bse_index_matches_installed_basis_set_exchange():
     with gzip.open(build_data.BSE_INDEX_FILE, "rt") as fh:
         stored = json.load(fh)
     note = (f"index built with basis_set_exchange {stored['bse_version']}, installed {bse.version()}: "
-            "run `python -m deckward.rules.build_data` to regenerate")
+            "run `python bench/build_data.py` to regenerate")
     fresh = build_data.build_bse_index(only={n.lower() for n in BSE_SAMPLE})
     assert set(fresh["bases"]) == set(BSE_SAMPLE), note
     for name in BSE_SAMPLE:
@@ -363,7 +363,7 @@ def test_names_neither_library_knows_stay_unknown():
 
 def test_bse_lookup_imports_neither_library():
     code = (
-        "import sys, deckward.rules.basis_library as b\n"
+        "import sys, deckward.rules.knowledge.basis_library as b\n"
         "assert b.lookup('jun-cc-pvtz').source == 'bse'; b.element_data('aug-cc-pcvtz', 'O'); b.closest('daugccpvtzz')\n"
         "assert 'pyscf' not in sys.modules and 'basis_set_exchange' not in sys.modules\n"
     )

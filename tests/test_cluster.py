@@ -19,9 +19,9 @@ import pytest
 from cluster_support import DaskProcesses, KillOnStart
 from runner_helpers import workspace, write_deck
 
-from deckward.rules.runner.cache import RunCache
-from deckward.rules.runner.parallel import RunOptions
-from deckward.rules.runner.run import run_workspace
+from deckward.rules.compute.runner.cache import RunCache
+from deckward.rules.compute.runner.parallel import RunOptions
+from deckward.rules.compute.runner.run import run_workspace
 
 pytest.importorskip("distributed")
 
@@ -76,7 +76,7 @@ derive e_zpe = energy(vibrating)
 
 @pytest.fixture(scope="module")
 def local_cluster():
-    from deckward.rules.runner.dask_executor import DaskExecutor
+    from deckward.rules.compute.runner.dask_executor import DaskExecutor
 
     with DaskExecutor.local(2) as executor:
         yield executor
@@ -111,7 +111,7 @@ def test_local_cluster_gives_the_numbers_of_a_local_run(tmp_path, local_cluster,
 
 
 def test_threads_and_memory_follow_the_worker(local_cluster):
-    from deckward.rules.runner.dask_tasks import worker_resources
+    from deckward.rules.compute.runner.dask_tasks import worker_resources
 
     client = local_cluster.client
     infos = client.scheduler_info()["workers"]
@@ -156,7 +156,7 @@ def test_worker_killed_mid_state_is_retried_on_another(tmp_path, local_cluster):
 
 @pytest.mark.pyscf
 def test_worker_deaths_past_the_bound_fail_that_state_only(tmp_path):
-    from deckward.rules.runner.dask_executor import DaskExecutor
+    from deckward.rules.compute.runner.dask_executor import DaskExecutor
 
     ws = workspace(tmp_path, LONG)
     with DaskExecutor.local(2, retries=0) as executor:

@@ -9,7 +9,7 @@ import textwrap
 
 import pytest
 
-from deckward.rules.config import load_config
+from deckward.rules.engine.config import load_config
 
 GOOD = textwrap.dedent("""\
     cluster:
@@ -78,7 +78,7 @@ def test_every_mistake_is_reported_at_its_line(tmp_path):
 
 def test_dask_jobqueue_writes_the_batch_script(tmp_path):
     pytest.importorskip("dask_jobqueue")
-    from deckward.rules.runner.cluster_build import jobqueue_cluster
+    from deckward.rules.compute.runner.cluster_build import jobqueue_cluster
 
     spec = _load(tmp_path, GOOD).clusters["hpc"]
     cluster = jobqueue_cluster(spec, spec.retries)

@@ -32,14 +32,17 @@ ALLOWED_DECKWARD = {
     "deckward.grammar.language_rules", "deckward.grammar.model", "deckward.grammar.parser",
     "deckward.grammar.resolve", "deckward.grammar.scanner", "deckward.grammar.text_index",
     "deckward.grammar.numbers", "deckward.grammar.safe_open", "deckward.grammar.wording",
-    "deckward.rules", "deckward.rules.basis_families", "deckward.rules.basis_library",
-    "deckward.rules.catalogue", "deckward.rules.catalogue._basis_targets", "deckward.rules.catalogue._examples",
-    "deckward.rules.config", "deckward.rules.context", "deckward.rules.deck_facts", "deckward.rules.diffuse",
-    "deckward.rules.edits", "deckward.rules.elements", "deckward.rules.engine", "deckward.rules.geometry",
-    "deckward.rules.project",
-    "deckward.rules.ion_states", "deckward.rules.methods", "deckward.rules.registry",
-    "deckward.rules.reference_data", "deckward.rules.species_facts",
-    "deckward.rules.state_text", "deckward.rules.suppressions", "deckward.rules.units",
+    "deckward.rules",
+    "deckward.rules.knowledge", "deckward.rules.knowledge.basis_families", "deckward.rules.knowledge.basis_library",
+    "deckward.rules.knowledge.deck_facts", "deckward.rules.knowledge.elements", "deckward.rules.knowledge.geometry",
+    "deckward.rules.knowledge.methods", "deckward.rules.knowledge.reference_data", "deckward.rules.knowledge.units",
+    "deckward.rules.engine", "deckward.rules.engine.checker", "deckward.rules.engine.config",
+    "deckward.rules.engine.context", "deckward.rules.engine.project", "deckward.rules.engine.registry",
+    "deckward.rules.engine.suppressions",
+    "deckward.rules.catalogue", "deckward.rules.catalogue._examples", "deckward.rules.catalogue.basis.targets",
+    "deckward.rules.catalogue.basis.diffuse", "deckward.rules.catalogue.ion_states.derives",
+    "deckward.rules.catalogue.ion_states.species",
+    "deckward.rules.fixes", "deckward.rules.fixes.edits", "deckward.rules.fixes.state_text",
     "deckward.server", "deckward.server.checking", "deckward.server.cli", "deckward.server.cmd_check",
     "deckward.server.format_text", "deckward.server.formats", "deckward.server.report_options",
     "deckward.server.scale_options",
@@ -70,7 +73,7 @@ def test_single_deck_check_imports_only_its_path(tmp_path):
     added = set(names) - set(baseline)
     ours = {n for n in added if n.split(".")[0] == "deckward"}
     assert ours <= ALLOWED_DECKWARD, sorted(ours - ALLOWED_DECKWARD)
-    for needed in ("deckward.grammar.parser", "deckward.rules.engine", "deckward.server.checking"):
+    for needed in ("deckward.grammar.parser", "deckward.rules.engine.checker", "deckward.server.checking"):
         assert needed in ours
     others = {n.split(".")[0] for n in added if n.split(".")[0] != "deckward"}
     # -X importtime also lists imports that were tried and failed (optional extras)

@@ -10,7 +10,7 @@ import pytest
 
 from runner_helpers import workspace, write_deck
 
-from deckward.rules import comparison
+from deckward.rules.compute import comparison
 from deckward.server.cli import main
 
 EV = 27.211386245988  # CODATA 2018 E_h in eV (check-values section 1)

@@ -10,7 +10,7 @@ import pytest
 
 from runner_helpers import write_deck
 
-from deckward.rules.convergence import LadderError, ladder_for
+from deckward.rules.compute.convergence import LadderError, ladder_for
 from deckward.server.cli import main
 
 EV = 27.211386245988  # CODATA 2018 E_h in eV (check-values section 1)

@@ -1,4 +1,4 @@
-"""The diffuse-function criterion (rules/diffuse.py) on real basis-set data.
+"""The diffuse-function criterion (rules/catalogue/basis/diffuse.py) on real basis-set data.
 
 Exponents come from the basis_set_exchange package ([BSE], check-values.md
 section 8) or from check-values.md section 5, which quotes [BSE].  Expected
@@ -11,7 +11,7 @@ import math
 
 import pytest
 
-from deckward.rules.diffuse import (
+from deckward.rules.catalogue.basis.diffuse import (
     CRITERION_REFERENCES,
     diffuse_layers,
     extra_electron_l,
@@ -49,7 +49,7 @@ def bse_exponents_all(basis: str, symbol: str) -> list[list[float]]:
 
 
 # Measured electron affinities (binding energies of the anions), as tabulated in
-# rules/reference_data.py with their sources: O 1.461 eV, Cl 3.613 eV (CRC Handbook),
+# rules/knowledge/reference_data.py with their sources: O 1.461 eV, Cl 3.613 eV (CRC Handbook),
 # Br 3.364 eV (CRC Handbook), H 0.754 eV (Lykke, Murray, Lineberger 1991).
 EA_O, EA_CL, EA_BR, EA_H = 1.46111297, 3.612724, 3.36359, 0.754195
 
@@ -57,7 +57,7 @@ EA_O, EA_CL, EA_BR, EA_H = 1.46111297, 3.612724, 3.36359, 0.754195
 def test_threshold_follows_documented_formula_for_oxygen():
     # alpha_max = kappa_X (kappa_b + 2 l kappa_X / n_l) / n_l, kappa = sqrt(2 E) in hartree;
     # I(O) = 13.61805 eV, NIST ASD as quoted in check-values.md section 3; n_1 calibrated.
-    from deckward.rules.diffuse import EFOLDS
+    from deckward.rules.catalogue.basis.diffuse import EFOLDS
 
     kx = math.sqrt(2 * 13.61805 / HARTREE_EV)
     kb = math.sqrt(2 * EA_O / HARTREE_EV)
@@ -183,7 +183,7 @@ def test_def2_svpd_on_carbon_lacks_a_diffuse_p():
 def test_correlated_methods_also_need_diffuse_polarisation():
     # smallest d exponent on F, [BSE]: 6-31+G* 0.8 (no diffuse d), aug-cc-pVTZ 0.292.
     # MP2 grid (docs/diffuse-criterion.md): F in 6-31+G* misses 0.14 eV through d, not at HF.
-    ea_f = 3.4011898  # rules/reference_data.py (CRC Handbook)
+    ea_f = 3.4011898  # rules/knowledge/reference_data.py (CRC Handbook)
     plus = bse_exponents_all("6-31+g*", "F")
     aug = bse_exponents_all("aug-cc-pvtz", "F")
     assert plus[2][0] == 0.8 and aug[2][0] == 0.292
@@ -276,7 +276,7 @@ def test_pyscf_library_gives_the_same_verdicts():
 
 
 def test_basis_library_index_agrees_when_present():
-    library = pytest.importorskip("deckward.rules.basis_library")
+    library = pytest.importorskip("deckward.rules.knowledge.basis_library")
     data = library.element_data("aug-cc-pvdz", "O")
     if data is None:
         pytest.skip("basis index data not generated")
@@ -301,7 +301,7 @@ def test_diffuse_shell_changes_fluorine_electron_affinity():
 
     gain = ea("6-31+g*") - ea("6-31g*")
     assert gain > 0.1
-    ea_f = 3.4011898  # F- binding, rules/reference_data.py (CRC Handbook)
+    ea_f = 3.4011898  # F- binding, rules/knowledge/reference_data.py (CRC Handbook)
     assert not verdict("F", bse_exponents("6-31g*", "F"), binding_ev=ea_f).is_diffuse
     assert verdict("F", bse_exponents("6-31+g*", "F"), binding_ev=ea_f).is_diffuse
 
@@ -320,7 +320,7 @@ def test_electropositive_atoms_in_plain_aug_sets_count_one_layer():
     # Si and B valence exponents already lie below the threshold; an ordinary
     # aug set must still count as one diffuse layer, not two (exponents from
     # the basis library index, generated from PySCF's basis files).
-    from deckward.rules import basis_library
+    from deckward.rules.knowledge import basis_library
 
     for word, symbol in (("aug-cc-pvtz", "Si"), ("aug-cc-pvtz", "B"), ("aug-cc-pv5z", "C"), ("aug-cc-pvqz", "S")):
         data = basis_library.element_data(word, symbol)
@@ -331,7 +331,7 @@ def test_electropositive_atoms_in_plain_aug_sets_count_one_layer():
 #
 # Geometries near the neutral radicals' structures (from memory), as in
 # bench/diffuse_grid_compute.py; measured binding energies from
-# rules/reference_data.py.  "Computed" diffuse errors are the Hartree-Fock
+# rules/knowledge/reference_data.py.  "Computed" diffuse errors are the Hartree-Fock
 # delta-SCF values of bench/diffuse_grid.json (docs/diffuse-criterion.md).
 
 GEOM = {  # angstrom, from memory
@@ -435,14 +435,14 @@ def test_species_not_in_the_table_get_a_warning_that_points_to_the_probe():
     "symbols, carriers",
     [
         # Mulliken electronegativity (I + A) / 2 from NIST ionization energies and the measured atomic
-        # electron affinities of rules/reference_data.py: O 7.54, N 7.27 (N- unbound), C 6.26 eV
+        # electron affinities of rules/knowledge/reference_data.py: O 7.54, N 7.27 (N- unbound), C 6.26 eV
         (["N", "O", "O"], ["O"]), (["C", "H", "O", "O"], ["O"]), (["C", "H", "H", "H", "O"], ["O"]),
         (["C", "N"], ["N"]), (["C", "C", "H"], ["C"]), (["O", "O"], ["O"]), (["H"], ["H"]),
         (["Li", "H"], ["Li", "H"]),
     ],
 )
 def test_the_extra_electron_is_judged_where_it_sits(symbols, carriers):
-    from deckward.rules.diffuse import carrier_symbols
+    from deckward.rules.catalogue.basis.diffuse import carrier_symbols
 
     assert carrier_symbols(symbols) == carriers
 

@@ -4,7 +4,8 @@ import json
 
 import pytest
 
-from deckward.rules import build_data, elements
+from build_data_script import build_data
+from deckward.rules.knowledge import elements
 
 # Cordero et al., "Covalent radii revisited", Dalton Trans. 2008, 2832
 # (check-values.md section 4), angstrom.  For carbon PySCF stores the sp2
@@ -70,6 +71,6 @@ def test_json_is_what_build_data_makes_from_installed_pyscf():
     stored = json.loads(build_data.ELEMENTS_FILE.read_text())
     fresh = build_data.build_elements()
     assert stored == fresh, (
-        f"rules/data/elements.json was built with PySCF {stored.get('pyscf_version')}, "
-        f"installed is {fresh['pyscf_version']}: run python -m deckward.rules.build_data"
+        f"rules/knowledge/data/elements.json was built with PySCF {stored.get('pyscf_version')}, "
+        f"installed is {fresh['pyscf_version']}: run python bench/build_data.py"
     )

@@ -12,7 +12,7 @@ import pytest
 
 from deckward.grammar.resolve import Loader, resolve
 from deckward.grammar.safe_open import NotRegularFile, read_regular
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.registry import all_rules
 from deckward.server import atomic_write
 from deckward.server.atomic_write import WriteRefused, clean_stale_temporaries, read_snapshot, write_atomically
 from deckward.server.cli import main

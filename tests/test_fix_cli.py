@@ -12,8 +12,8 @@ import pytest
 
 from deckward.grammar.build import build_deck
 from deckward.grammar.findings import Applicability
-from deckward.rules.project import Project
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.project import Project
+from deckward.rules.engine.registry import all_rules
 from deckward.server import fixing
 from deckward.server.cli import main
 from rule_harness import check_text

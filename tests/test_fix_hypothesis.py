@@ -10,8 +10,8 @@ from hypothesis import strategies as st
 
 from deckward.grammar.build import build_deck
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
-from deckward.rules.fixes import fix_text
+from deckward.rules.engine.checker import check_workspace
+from deckward.rules.fixes.apply import fix_text
 
 FOLDER = ""  # set per module by the fixture below, inside pytest's own temporary folder
 PATH = ""

@@ -1,4 +1,4 @@
-"""The fix loop (deckward.rules.fixes): which fixes it picks, in what order,
+"""The fix loop (deckward.rules.fixes.apply): which fixes it picks, in what order,
 what it refuses, and that layout survives.  Pure: texts in, texts out."""
 import os
 import random
@@ -6,8 +6,8 @@ import random
 from deckward.grammar.findings import Applicability, Finding, Fix, Severity, Span, TextEdit
 from deckward.grammar.resolve import Loader, resolve
 from deckward.grammar.text_index import LineIndex
-from deckward.rules.engine import check_workspace
-from deckward.rules.fixes import candidates, fix_is_applicable, fix_text
+from deckward.rules.engine.checker import check_workspace
+from deckward.rules.fixes.apply import candidates, fix_is_applicable, fix_text
 
 PATH = os.path.abspath("toy.deck")
 OTHER = os.path.abspath("other.deck")

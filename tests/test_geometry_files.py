@@ -10,8 +10,8 @@ import pytest
 from runner_helpers import write_deck
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.config import Config
-from deckward.rules.engine import check_workspace
+from deckward.rules.engine.config import Config
+from deckward.rules.engine.checker import check_workspace
 
 # Mistakes on purpose: two H atoms 0.2 A apart (far under 2 x 0.31 A,
 # Cordero 2008 covalent radius of H, check-values section 4), a fragment
@@ -107,7 +107,7 @@ def test_units_suspect_in_an_xyz_file_points_at_its_first_atom_with_no_fix(tmp_p
 
 
 def test_runner_plan_uses_the_file_atoms(tmp_path):
-    from deckward.rules.runner.mapping import plan_state
+    from deckward.rules.compute.runner.mapping import plan_state
 
     text = 'geometry g { file = "g.xyz" }\nlevel lv { method = hf basis = cc-pvdz }\nstate n { geometry = g level = lv }\n'
     write_deck(tmp_path, "2\n\nH 0 0 0\nH 0 0 0.7414\n", "g.xyz")

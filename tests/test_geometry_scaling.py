@@ -8,7 +8,7 @@ import random
 import pytest
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules import geometry as geo
+from deckward.rules.knowledge import geometry as geo
 from rule_harness import check_text
 
 GEOMETRY_RULES = {"atoms-too-close", "units-suspect", "disconnected-fragments", "empty-geometry"}

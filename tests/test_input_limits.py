@@ -106,7 +106,7 @@ def test_deeply_nested_configuration_is_a_located_message(tmp_path, capsys):
 
 
 def test_deeply_indented_configuration_is_a_located_message(tmp_path):
-    from deckward.rules.config import load_config
+    from deckward.rules.engine.config import load_config
 
     text = "rules:\n" + "".join("  " * i + f"k{i}:\n" for i in range(1, 3000))
     (tmp_path / "deckward.yaml").write_text(text)

@@ -12,7 +12,7 @@ Facts of the trade the expected texts rely on:
 - An open-shell state cannot use a restricted (closed-shell) reference
   (Szabo and Ostlund, Modern Quantum Chemistry, section 3.8, from memory).
 """
-from deckward.rules.edits import apply_edits
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text
 
 PARSE_RULES = {

@@ -1,17 +1,23 @@
-"""The design's one direction (grammar -> rules -> server) and the light
-typing path, enforced on the source rather than promised in a docstring."""
+"""The design's one direction (grammar -> rules -> server), the order of
+the parts inside rules/ (knowledge, fixes, catalogue, engine, compute) and
+the light typing path, enforced on the source rather than promised in a
+docstring."""
 from __future__ import annotations
 
 import os
 import textwrap
 
-from layering import back_edges, heavy_on_typing_path
+from layering import back_edges, heavy_on_typing_path, rules_part_edges
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
 def test_no_import_runs_against_the_layers():
     assert back_edges(ROOT) == []
+
+
+def test_the_parts_of_rules_import_only_those_below_them():
+    assert rules_part_edges(ROOT) == []
 
 
 def test_typing_path_reaches_no_heavy_library():
@@ -56,4 +62,33 @@ def test_heavy_import_reached_through_a_chain_is_reported_but_a_lazy_one_is_not(
     assert heavy_on_typing_path(root) == [
         "deckward.rules.catalogue.some_rule -> matplotlib (line 2)",
         "deckward.server.cmd_check -> deckward.rules.helper -> deckward.rules.tables -> numpy (line 1)",
+    ]
+
+
+def test_a_back_edge_between_the_parts_of_rules_is_reported(tmp_path):
+    root = _tree(tmp_path, {
+        "rules/knowledge/__init__.py": "",
+        "rules/knowledge/elements.py": "from deckward.rules.engine import config\n",
+        "rules/fixes/__init__.py": "",
+        "rules/fixes/edits.py": "from ..knowledge import elements\n",
+        "rules/catalogue/__init__.py": "",
+        "rules/catalogue/some_rule.py": ("from deckward.rules.engine.context import Context\n"
+                                         "from deckward.rules.engine.registry import all_rules\n"),
+        "rules/engine/__init__.py": "",
+        "rules/engine/checker.py": ("from deckward.rules.compute import runner\n"
+                                    "def probe():\n    from deckward.rules.compute.probes import run_probes\n"),
+    })
+    assert rules_part_edges(root) == [
+        f"rules{os.sep}catalogue{os.sep}some_rule.py:2: deckward.rules.catalogue.some_rule (catalogue) imports "
+        "at module level deckward.rules.engine.registry (engine)",
+        f"rules{os.sep}catalogue{os.sep}some_rule.py:2: deckward.rules.catalogue.some_rule (catalogue) imports "
+        "at module level deckward.rules.engine.registry.all_rules (engine)",
+        f"rules{os.sep}engine{os.sep}checker.py:1: deckward.rules.engine.checker (engine) imports "
+        "at module level deckward.rules.compute (compute)",
+        f"rules{os.sep}engine{os.sep}checker.py:1: deckward.rules.engine.checker (engine) imports "
+        "at module level deckward.rules.compute.runner (compute)",
+        f"rules{os.sep}knowledge{os.sep}elements.py:1: deckward.rules.knowledge.elements (knowledge) imports "
+        "at module level deckward.rules.engine (engine)",
+        f"rules{os.sep}knowledge{os.sep}elements.py:1: deckward.rules.knowledge.elements (knowledge) imports "
+        "at module level deckward.rules.engine.config (engine)",
     ]

@@ -9,7 +9,7 @@ from lsprotocol import types as t
 from pytest_lsp import LanguageClient
 
 from deckward.grammar.formatter import format_text
-from deckward.rules.registry import get as get_rule
+from deckward.rules.engine.registry import get as get_rule
 from lsp_support import (apply_text_edits, brief, change_document, client_fixture, open_document, uri_of,
                          wait_for_diagnostics, write_workspace)
 

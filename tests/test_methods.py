@@ -2,7 +2,7 @@
 
 import pytest
 
-from deckward.rules import methods
+from deckward.rules.knowledge import methods
 
 libxc = pytest.importorskip("pyscf.dft.libxc")
 

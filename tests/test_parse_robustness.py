@@ -11,7 +11,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules.engine import check_workspace
+from deckward.rules.engine.checker import check_workspace
 
 VALID = '''study "acceptor-no2" { goal = electron_affinity kind = vertical }
 geometry no2 {

@@ -6,9 +6,9 @@ import pytest
 
 from runner_helpers import workspace, write_deck
 
-from deckward.rules.config import Config
-from deckward.rules.probes import PROBE_RULES, run_probes
-from deckward.rules.runner.cache import RunCache
+from deckward.rules.engine.config import Config
+from deckward.rules.compute.probes import PROBE_RULES, run_probes
+from deckward.rules.compute.runner.cache import RunCache
 
 pytestmark = pytest.mark.pyscf  # computes with PySCF
 
@@ -131,7 +131,7 @@ def test_probes_are_cached(tmp_path):
     _probe(tmp_path, C_DECK, select={"probe-unbound-anion"})
     cache = RunCache(str(tmp_path / "cache"))
     ws = workspace(tmp_path, C_DECK)
-    from deckward.rules.probes.common import ProbeContext
+    from deckward.rules.compute.probes.common import ProbeContext
 
     ctx = ProbeContext(ws, Config(), cache)
     plans = [ctx.plan("neutral"), ctx.plan("anion")]

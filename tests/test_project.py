@@ -1,4 +1,4 @@
-"""The project around a deck (``deckward.rules.project``): which
+"""The project around a deck (``deckward.rules.engine.project``): which
 deckward.yaml applies and where the workspace ends, the same for the command
 line and the language server, including workspaces nested in each other."""
 from __future__ import annotations
@@ -13,8 +13,8 @@ import pytest
 from lsprotocol import types as t
 
 from deckward.grammar.findings import Severity
-from deckward.rules.project import Projects, find_config_file
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.project import Projects, find_config_file
+from deckward.rules.engine.registry import all_rules
 from deckward.server.cli import main
 from lsp_support import open_document, session, uri_of, wait_for_diagnostics
 

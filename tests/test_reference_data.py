@@ -6,8 +6,8 @@ from pathlib import Path
 
 import pytest
 
-from deckward.rules import reference_data as rd
-from deckward.rules.reference_data import identify
+from deckward.rules.knowledge import reference_data as rd
+from deckward.rules.knowledge.reference_data import identify
 
 DATA = Path(rd.__file__).resolve().parent / "data" / "reference_species.json"
 
@@ -223,7 +223,7 @@ def test_format_value():
 def test_tabulated_multiplicities_fit_the_electron_counts():
     # M - 1 unpaired electrons: M - 1 has the parity of N (IUPAC Gold Book, spin
     # multiplicity 2S + 1, from memory), so no row can claim an impossible state.
-    from deckward.rules import elements
+    from deckward.rules.knowledge import elements
 
     for sp in rd.all_species():
         z = sum(elements.lookup(s).z * n for s, n in sp.composition.items())

@@ -16,10 +16,10 @@ import pytest
 
 from runner_helpers import workspace, write_deck
 
-from deckward.rules.runner import results_db
-from deckward.rules.runner.cache import RunCache, pyscf_version
-from deckward.rules.runner.results_db import DatabaseError, ResultsDB
-from deckward.rules.runner.run import run_workspace
+from deckward.rules.compute.runner import results_db
+from deckward.rules.compute.runner.cache import RunCache, pyscf_version
+from deckward.rules.compute.runner.results_db import DatabaseError, ResultsDB
+from deckward.rules.compute.runner.run import run_workspace
 
 H_ATOMS = """geometry h { H 0 0 0 }
 geometry he { He 0 0 0 }

@@ -107,7 +107,7 @@ def test_every_deck_and_finding_appears_with_context_why_and_fix(report):
     assert [text_of(m) for m in context.iter(X + "mark")] == ["restricted"]
     numbers = [text_of(s) for s in by_class(context, "span", "no")]
     assert numbers == ["4", "5", "6", "7", "8"]  # two lines either side of line 6
-    from deckward.rules.registry import get
+    from deckward.rules.engine.registry import get
 
     assert get("restricted-open-shell").info.why in text_of(by_class(art, "div", "why")[0])
     diffs = by_class(art, "pre", "diff")

@@ -3,7 +3,7 @@ import os
 import subprocess
 import sys
 
-from deckward.rules.registry import all_rules
+from deckward.rules.engine.registry import all_rules
 from deckward.server.rule_docs import explain, markdown
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))

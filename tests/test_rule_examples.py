@@ -2,8 +2,8 @@
 silent on its good example; its fix turns the bad example into the fixed one."""
 import pytest
 
-from deckward.rules.edits import apply_edits
-from deckward.rules.registry import all_rules
+from deckward.rules.fixes.edits import apply_edits
+from deckward.rules.engine.registry import all_rules
 from rule_harness import check_text, covered
 
 RULES = [r for r in all_rules().values() if r.check is not None]

@@ -12,8 +12,8 @@ from __future__ import annotations
 import pytest
 
 from deckward.grammar.findings import Applicability, Severity
-from deckward.rules import diffuse
-from deckward.rules.edits import apply_edits
+from deckward.rules.catalogue.basis import diffuse
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text, covered
 
 ANION = "anion-lacks-diffuse"
@@ -62,7 +62,7 @@ CHLORIDE = (
     "state anion { geometry = cl level = hf_tz charge = -1 multiplicity = 1 }\n"
 )
 
-# Cl- binding energy 3.61 eV: the measured electron affinity of Cl in rules/reference_data.py
+# Cl- binding energy 3.61 eV: the measured electron affinity of Cl in rules/knowledge/reference_data.py
 # (CRC Handbook).  cc-pVTZ's p (0.130) fails there, but falls short by less than the criterion's
 # margin at the strongest binding in practice (4 eV), so a warning that points to the probe.
 CHLORIDE_MESSAGE = (
@@ -130,11 +130,11 @@ def no2(basis: str, study: str = "", derive: str = "") -> str:
 
 
 # cc-pVDZ O p 0.2753 against aug-cc-pVDZ O p 0.06856, [BSE].  The extra electron of NO2- is
-# judged on O, its most electronegative atom (Mulliken scale, rules/diffuse.py).
+# judged on O, its most electronegative atom (Mulliken scale, rules/catalogue/basis/diffuse.py).
 NO2_DZ_DETAIL = (
     "use cc-pvdz, whose most diffuse p function on O has exponent 0.275, four times tighter than the "
     "0.069 that aug-cc-pvdz adds; "
-    "NO2- is bound by 2.27 eV (measured); the set is too tight even for the most strongly bound anions"  # NO2 electron affinity 2.273 eV, rules/reference_data.py (Ervin et al. 1988)
+    "NO2- is bound by 2.27 eV (measured); the set is too tight even for the most strongly bound anions"  # NO2 electron affinity 2.273 eV, rules/knowledge/reference_data.py (Ervin et al. 1988)
 )
 
 
@@ -210,7 +210,7 @@ def test_added_shells_that_are_tight_do_not_count_as_diffuse():
         "the anion state `anion` uses basis_set `dz_tight` (cc-pvdz plus added shells), whose most "
         "diffuse p function on O has exponent 0.275, four times tighter than the 0.069 that aug-cc-pvdz "
         "adds; HCO2- is bound by 3.50 eV (measured); the set is too tight even for the most strongly bound "
-        "anions"  # formyloxyl electron affinity, rules/reference_data.py; judged on O, not C
+        "anions"  # formyloxyl electron affinity, rules/knowledge/reference_data.py; judged on O, not C
     )
     fixed = apply_first_fix(text, f)
     assert "  from = aug-cc-pvdz\n" in fixed
@@ -260,7 +260,7 @@ def test_no_fix_when_the_family_has_no_augmented_counterpart():
     [f] = run(text, ANION)
     assert f.fixes == ()
     assert f.message.endswith("; the library has no augmented counterpart of sto-3g, so no fix is offered")
-    # 3.612724 eV: the electron affinity of Cl in rules/reference_data.py (CRC Handbook)
+    # 3.612724 eV: the electron affinity of Cl in rules/knowledge/reference_data.py (CRC Handbook)
     assert f"above the {diffuse.threshold('Cl', 3.612724):.3f} the extra electron needs; Cl- is bound by 3.61 eV" in f.message
 
 

@@ -6,8 +6,8 @@ written ``ghost-O``) and refuses a charge/spin pair that cannot exist.
 """
 import pytest
 
-from deckward.rules.catalogue.charge_multiplicity_mismatch import consistent_multiplicities
-from deckward.rules.edits import apply_edits
+from deckward.rules.catalogue.electrons.charge_multiplicity_mismatch import consistent_multiplicities
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text, covered
 
 NO2 = "geometry no2 {\n  N 0 0 0\n  O 0 1.0989 0.4653\n  O 0 -1.0989 0.4653\n}\n"
@@ -175,7 +175,7 @@ def _pyscf_accepts(atoms, charge, multiplicity):
 
 @pytest.mark.parametrize("atoms, charge, multiplicity", PYSCF_CASES)
 def test_reference_library_pyscf_agrees_on_electron_count_and_verdict(atoms, charge, multiplicity):
-    from deckward.rules import deck_facts
+    from deckward.rules.knowledge import deck_facts
 
     lines = "".join(f"  {s} {x} {y} {z}{' ghost' if g else ''}\n" for s, x, y, z, g in atoms)
     text = f"geometry g {{\n{lines}}}\nstate s {{ geometry = g charge = {charge} multiplicity = {multiplicity} }}\n"

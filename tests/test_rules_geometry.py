@@ -1,5 +1,5 @@
 """Geometry rules and helpers: atoms-too-close, units-suspect,
-disconnected-fragments, empty-geometry, and rules/geometry.py.
+disconnected-fragments, empty-geometry, and rules/knowledge/geometry.py.
 
 Real molecules are built from experimental structures; each value carries its
 source in a comment.  The same numbers are then written under the right and
@@ -10,8 +10,8 @@ import math
 import pytest
 
 from deckward.grammar.resolve import Loader, resolve
-from deckward.rules import geometry as geo
-from deckward.rules.edits import apply_edits
+from deckward.rules.knowledge import geometry as geo
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text, covered
 
 GEOMETRY_RULES = {"atoms-too-close", "units-suspect", "disconnected-fragments", "empty-geometry"}

@@ -8,8 +8,8 @@ Ahlrichs, Phys. Chem. Chem. Phys. 7, 3297 (2005): def2 covers H-Rn).
 """
 import pytest
 
-from deckward.rules.catalogue.unknown_basis import as_deck_word
-from deckward.rules.edits import apply_edits
+from deckward.rules.catalogue.basis.unknown_basis import as_deck_word
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text, covered
 
 CN = "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"

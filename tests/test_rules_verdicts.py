@@ -20,7 +20,7 @@ Facts of the trade behind the expectations (sources beside each use):
 Geometries are demo structures of the acceptor-screening scenario.
 """
 from deckward.rules.catalogue._examples import NO2_GEOMETRY as NO2
-from deckward.rules.edits import apply_edits
+from deckward.rules.fixes.edits import apply_edits
 from rule_harness import check_text, covered
 
 N2 = "geometry n2 {\n  N 0 0 0\n  N 0 0 1.0977\n}\n"
@@ -311,7 +311,7 @@ def test_casscf_is_recognised_and_gets_no_bad_suggestion():
 
 
 def test_did_you_mean_needs_a_word_of_similar_length():
-    from deckward.rules import methods
+    from deckward.rules.knowledge import methods
 
     assert methods.closest("casscf") == []
     assert methods.closest("casscff") == []  # "scf" is a shared tail, not a typo
@@ -326,8 +326,8 @@ def test_did_you_mean_needs_a_word_of_similar_length():
 
 
 def test_probe_blames_correlation_for_oxygen_in_a_diffuse_basis():
-    from deckward.rules.probes.unbound_anion import verdict
-    from deckward.rules.reference_data import by_key
+    from deckward.rules.compute.probes.unbound_anion import verdict
+    from deckward.rules.knowledge.reference_data import by_key
 
     text = verdict("anion", "aug-cc-pvdz", homo_ev=-1.2, delta_ev=-0.5, species=by_key("O"), diffuse_basis=True)
     assert text == (
@@ -342,8 +342,8 @@ def test_probe_blames_correlation_for_oxygen_in_a_diffuse_basis():
 
 
 def test_probe_wording_for_a_positive_homo_and_an_unbound_species():
-    from deckward.rules.probes.unbound_anion import verdict
-    from deckward.rules.reference_data import by_key
+    from deckward.rules.compute.probes.unbound_anion import verdict
+    from deckward.rules.knowledge.reference_data import by_key
 
     text = verdict("anion", "cc-pvdz", homo_ev=0.8, delta_ev=-2.0, species=by_key("N2"), diffuse_basis=False)
     assert text.startswith(

@@ -12,14 +12,14 @@ import pytest
 
 from runner_helpers import workspace, write_deck
 
-from deckward.rules.config import Config, load_config
-from deckward.rules.probes import run_probes
-from deckward.rules.probes.common import ProbeSettings
-from deckward.rules.runner import cache_entry, cost
-from deckward.rules.runner.cache import RunCache
-from deckward.rules.runner.mapping import plan_state
-from deckward.rules.runner.parallel import poll_timeout
-from deckward.rules.runner.results import RunReport, format_report
+from deckward.rules.engine.config import Config, load_config
+from deckward.rules.compute.probes import run_probes
+from deckward.rules.compute.probes.common import ProbeSettings
+from deckward.rules.compute.runner import cache_entry, cost
+from deckward.rules.compute.runner.cache import RunCache
+from deckward.rules.compute.runner.mapping import plan_state
+from deckward.rules.compute.runner.parallel import poll_timeout
+from deckward.rules.compute.runner.results import RunReport, format_report
 from deckward.server.cli import main
 
 # Benzene near its experimental structure (C-C 1.396 A, C-H 1.084 A; NIST
@@ -56,7 +56,7 @@ def run_cli(*argv, capsys):
 @pytest.mark.pyscf
 @pytest.mark.parametrize("basis", ["sto-3g", "6-31g*", "cc-pvtz", "aug-cc-pvqz", "def2-svp"])
 def test_basis_function_count_equals_pyscf(tmp_path, basis):
-    from deckward.rules.runner.pyscf_build import build_mole
+    from deckward.rules.compute.runner.pyscf_build import build_mole
 
     ws = workspace(tmp_path, BENZENE + f"state s {{ geometry = bz  method = hf  basis = {basis}  multiplicity = 1 }}\n")
     plan = plan_state(ws, "s")
@@ -164,7 +164,7 @@ def test_a_worker_whose_command_stopped_ends_quietly(tmp_path):
     import multiprocessing
     from dataclasses import asdict
 
-    from deckward.rules.runner.parallel import _worker
+    from deckward.rules.compute.runner.parallel import _worker
 
     plan = plan_state(workspace(tmp_path, H2), "mol")
     receive, send = multiprocessing.Pipe(duplex=False)
@@ -230,7 +230,7 @@ def test_a_cache_folder_that_is_a_file_is_a_usage_error(tmp_path, capsys):
 def test_a_full_disk_leaves_the_results_printed_and_a_note(tmp_path, capsys, monkeypatch):
     import errno
 
-    from deckward.rules.runner import cache as cache_module
+    from deckward.rules.compute.runner import cache as cache_module
 
     def full(*a, **k):
         raise OSError(errno.ENOSPC, "No space left on device")
@@ -298,7 +298,7 @@ def test_infinite_probe_bound_is_a_config_finding_not_a_crash(tmp_path):
 
 
 def test_a_ten_thousand_atom_deck_is_skipped_by_the_overlap_probe_without_building_it(tmp_path, monkeypatch):
-    from deckward.rules.runner import pyscf_build
+    from deckward.rules.compute.runner import pyscf_build
 
     def never(*a, **k):
         raise AssertionError("the molecule must not be built to find that it is too large")

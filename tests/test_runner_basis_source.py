@@ -17,7 +17,7 @@ import pytest
 
 pytest.importorskip("pyscf")
 
-from deckward.rules.runner import pyscf_build  # noqa: E402
+from deckward.rules.compute.runner import pyscf_build  # noqa: E402
 
 H2 = """study "h2-check" { goal = energy }
 geometry h2 {
@@ -116,8 +116,8 @@ def test_a_missing_basis_set_exchange_is_one_clear_line(monkeypatch):
 
 
 def test_the_run_cache_key_covers_the_basis_content(monkeypatch):
-    from deckward.rules.runner.cache import RunCache
-    from deckward.rules.runner.plan import AtomPlan, ElementBasisPlan, StatePlan
+    from deckward.rules.compute.runner.cache import RunCache
+    from deckward.rules.compute.runner.plan import AtomPlan, ElementBasisPlan, StatePlan
 
     plan = StatePlan(
         name="ground", atoms=(AtomPlan("H", (0, 0, 0)), AtomPlan("H", (0, 0, 0.7414))), unit="angstrom",
@@ -133,7 +133,7 @@ def test_the_run_cache_key_covers_the_basis_content(monkeypatch):
 
 def test_probes_and_runner_build_the_same_molecule_in_a_poisoned_folder(tmp_path, monkeypatch):
     # the probes build their molecules through the same build_mole
-    from deckward.rules.runner.plan import AtomPlan, ElementBasisPlan, StatePlan
+    from deckward.rules.compute.runner.plan import AtomPlan, ElementBasisPlan, StatePlan
 
     plan = StatePlan(
         name="ground", atoms=(AtomPlan("H", (0, 0, 0)), AtomPlan("H", (0, 0, 0.7414))), unit="angstrom",

@@ -10,7 +10,7 @@ import pytest
 
 from runner_helpers import run_text, write_deck
 
-from deckward.rules.runner.parallel import RunOptions
+from deckward.rules.compute.runner.parallel import RunOptions
 
 pytestmark = pytest.mark.pyscf  # computes with PySCF
 

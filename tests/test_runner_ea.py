@@ -44,7 +44,7 @@ CC_TOLERANCE_EV = 0.15
     pytest.param(OH, 2, 1.8276487, marks=pytest.mark.skipif(not SLOW, reason="set DECKWARD_SLOW_TESTS=1")),
 ])
 def test_ccsd_t_electron_affinity_against_experiment(tmp_path, geometry, n_mult, experiment):
-    from deckward.rules.runner.parallel import RunOptions
+    from deckward.rules.compute.runner.parallel import RunOptions
 
     report = run_text(tmp_path, _ea_deck(geometry, "ccsd(t)", "aug-cc-pvtz", n_mult, 1),
                       options=RunOptions(max_memory_mb=1500))

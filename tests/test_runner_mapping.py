@@ -6,8 +6,8 @@ import pytest
 
 from runner_helpers import workspace
 
-from deckward.rules.runner.mapping import MappingError, needed_states, plan_state
-from deckward.rules.runner.pyscf_build import build_correlated, build_mole, build_scf
+from deckward.rules.compute.runner.mapping import MappingError, needed_states, plan_state
+from deckward.rules.compute.runner.pyscf_build import build_correlated, build_mole, build_scf
 
 pytestmark = pytest.mark.pyscf  # computes with PySCF
 
@@ -42,7 +42,7 @@ def test_method_families_open_shell(tmp_path, method, reference, mf_cls, post_cl
     mf = build_scf(mol, plan)
     assert type(mf).__name__ == mf_cls
     if plan.family == "dft":
-        from deckward.rules import methods
+        from deckward.rules.knowledge import methods
 
         assert mf.xc == methods.lookup(method).pyscf_xc
     post = build_correlated(mf, plan)
@@ -115,7 +115,7 @@ def test_mapping_errors_are_located(tmp_path, level, state_extra, message, fires
 
 
 def test_functional_without_libxc_name_is_a_clear_error(tmp_path, monkeypatch):
-    from deckward.rules import methods
+    from deckward.rules.knowledge import methods
 
     real = methods.lookup
 

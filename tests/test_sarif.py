@@ -76,7 +76,7 @@ def test_results_have_exact_locations(sarif):
 
 
 def test_rules_carry_title_rationale_help_and_level(sarif):
-    from deckward.rules.registry import get
+    from deckward.rules.engine.registry import get
 
     driver = sarif["runs"][0]["tool"]["driver"]
     assert driver["name"] == "deckward"

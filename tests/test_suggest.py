@@ -5,7 +5,7 @@ import pytest
 from deckward.grammar.findings import Applicability
 from deckward.grammar.language_rules import LANGUAGE_RULES
 from deckward.grammar.suggest import edit_distance, suggest
-from deckward.rules.edits import apply_edits
+from deckward.rules.fixes.edits import apply_edits
 from deckward.server.cli import main
 from rule_harness import check_text, covered
 

@@ -9,7 +9,7 @@ import math
 
 import pytest
 
-from deckward.rules import units
+from deckward.rules.knowledge import units
 
 # CODATA 2018: E_h = 27.211386245988 eV
 HARTREE_EV = 27.211386245988

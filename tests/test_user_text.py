@@ -10,8 +10,8 @@ import re
 
 import pytest
 
-from deckward.rules import reference_data
-from deckward.rules.registry import all_rules
+from deckward.rules.knowledge import reference_data
+from deckward.rules.engine.registry import all_rules
 from rule_harness import check_text
 
 # Markers of contributors' notes: bracketed tags and the bare words.

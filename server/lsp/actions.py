@@ -4,7 +4,7 @@ Quick fixes come from the findings under the cursor, from the same analysis
 that produced the diagnostics; a fix marked risky says so in its title
 (it changes what is computed or what it costs) and is never the preferred
 one.  The source action applies the safe fixes one at a time with a
-re-check after each (``deckward.rules.fixes.fix_text``, the loop behind
+re-check after each (``deckward.rules.fixes.apply.fix_text``, the loop behind
 ``deckward check --fix``) and offers the result as one edit.
 """
 from __future__ import annotations
@@ -60,7 +60,7 @@ def quick_fixes(analysis: "Analysis", start: int, end: int) -> list[t.CodeAction
 
 def fix_all(server: DeckServer, analysis: "Analysis"):
     """The text with every safe fix applied (None when nothing changes)."""
-    from deckward.rules import fixes
+    from deckward.rules.fixes import apply as fixes
 
     if not fixes.candidates(analysis.findings, analysis.path, analysis.text, include_risky=False):
         return None

@@ -289,7 +289,7 @@ def _elements_in_use(ws: Workspace, ctx: Context) -> set[str]:
 
 
 def _basis_items(ws: Workspace, ctx: Context, only: Optional[str] = None) -> list[t.CompletionItem]:
-    from deckward.rules import basis_library
+    from deckward.rules.knowledge import basis_library
 
     symbols = {only} if only else _elements_in_use(ws, ctx)
     names = basis_library.covering(symbols) if symbols else basis_library.all_names()
@@ -306,7 +306,7 @@ def _basis_items(ws: Workspace, ctx: Context, only: Optional[str] = None) -> lis
 
 
 def _method_items() -> list[t.CompletionItem]:
-    from deckward.rules import methods
+    from deckward.rules.knowledge import methods
 
     out = []
     for n in methods.all_names():
@@ -384,7 +384,7 @@ def with_edits(items: list[t.CompletionItem], ctx: Context, text: str, positions
     that a client never splits a basis word at `-` or `(`: the label (or its
     insert text), quoted where the deck language needs quotes, after a space
     when the cursor sits right after `=` or `:`."""
-    from deckward.rules.catalogue.unknown_basis import as_deck_word
+    from deckward.rules.catalogue.basis.unknown_basis import as_deck_word
 
     word_value = ctx.what == "map_value" or (ctx.what == "value" and ctx.key in WORD_KEYS)
     spaced = ctx.start > 0 and text[ctx.start - 1] in "=:"

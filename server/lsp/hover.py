@@ -2,7 +2,7 @@
 
 - a basis word: per element of the geometries it is used for, the library's
   functions per angular momentum, the most diffuse s and p exponents and
-  whether they count as diffuse (``deckward.rules.diffuse``);
+  whether they count as diffuse (``deckward.rules.catalogue.basis.diffuse``);
 - a state: its electron count, charge, multiplicity, reference and level;
 - a method word: its family;
 - a geometry or level name: a one-line summary;
@@ -96,7 +96,8 @@ def _symbols(geometries: list[m.Geometry], restriction) -> list[str]:
 
 
 def basis_text(ws: Workspace, word: m.Located, owner, restriction, spec) -> str:
-    from deckward.rules import basis_library, deck_facts, diffuse
+    from deckward.rules.knowledge import basis_library, deck_facts
+    from deckward.rules.catalogue.basis import diffuse
 
     info = basis_library.lookup(word.value)
     deck_set = ws.basis_set(word.value)
@@ -145,7 +146,7 @@ def basis_text(ws: Workspace, word: m.Located, owner, restriction, spec) -> str:
 
 
 def state_text(ws: Workspace, name: str) -> Optional[str]:
-    from deckward.rules import deck_facts
+    from deckward.rules.knowledge import deck_facts
 
     rs = ws.states.get(name)
     if rs is None:
@@ -170,7 +171,7 @@ def state_text(ws: Workspace, name: str) -> Optional[str]:
 
 
 def method_text(word: str) -> str:
-    from deckward.rules import methods
+    from deckward.rules.knowledge import methods
 
     info = methods.lookup(word)
     if info is None:

@@ -29,8 +29,8 @@ ACTION_KIND = "source.deckward.probes"
 ACTION_TITLE = "Run the PySCF probes on this deck (Hartree-Fock; seconds to minutes)"
 
 def _run_one(analysis: "Analysis", probe_id: str) -> list[Finding]:
-    from deckward.rules.engine import check_workspace
-    from deckward.rules.probes import run_probes
+    from deckward.rules.engine.checker import check_workspace
+    from deckward.rules.compute.probes import run_probes
 
     found = run_probes(analysis.workspace, analysis.config, select={probe_id})
     # severities from deckward.yaml and `# allow:` comments apply to probe findings too
@@ -42,7 +42,7 @@ async def run_probes_command(server: DeckServer, uri: str) -> dict:
     analysis = await server.analysis(uri)
     if analysis is None:
         return {"findings": 0, "message": "the document is not open"}
-    from deckward.rules.probes import PROBE_RULES
+    from deckward.rules.compute.probes import PROBE_RULES
 
     token = f"deckward-probes-{uuid.uuid4().hex}"
     progress = True

@@ -1,7 +1,7 @@
 """The server's view of the project: open buffers, configuration, analyses.
 
 Checking an open document is the command line's check on the buffer's text,
-through the same ``deckward.rules.project.Projects``: one ``Loader`` whose
+through the same ``deckward.rules.engine.project.Projects``: one ``Loader`` whose
 overlay holds every open buffer (so a deck that uses an unsaved file sees the
 unsaved text); the workspace root and ``deckward.yaml`` are found exactly as
 the command line finds them (the client's workspace folders play the part of
@@ -23,8 +23,8 @@ from pygls.uris import from_fs_path, to_fs_path
 
 from deckward.grammar.findings import Finding
 from deckward.grammar.resolve import Workspace
-from deckward.rules.config import CONFIG_NAME, Config
-from deckward.rules.project import Project, Projects
+from deckward.rules.engine.config import CONFIG_NAME, Config
+from deckward.rules.engine.project import Project, Projects
 
 from .positions import UTF16, PositionMap
 

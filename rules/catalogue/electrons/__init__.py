@@ -1,0 +1,2 @@
+"""Rules about electrons, charge, multiplicity, references, methods and
+names (category `electrons`)."""

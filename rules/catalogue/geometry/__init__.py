@@ -1,0 +1,1 @@
+"""Rules about geometries (category `geometry`)."""
