@@ -12,7 +12,8 @@ from deckward.rules.engine.registry import rule_modules, static_rules
 FAMILIES = ("basis", "electrons", "geometry", "ion_states")
 # Modules of a family that hold its shared facts rather than a rule.
 SHARED_FACTS = {"deckward.rules.catalogue.basis.diffuse", "deckward.rules.catalogue.basis.targets",
-                "deckward.rules.catalogue.ion_states.derives", "deckward.rules.catalogue.ion_states.species"}
+                "deckward.rules.catalogue.ion_states.derives", "deckward.rules.catalogue.ion_states.ion_fixes",
+                "deckward.rules.catalogue.ion_states.species", "deckward.rules.catalogue.ion_states.wording"}
 
 
 def test_the_families_are_the_folders_of_the_catalogue():

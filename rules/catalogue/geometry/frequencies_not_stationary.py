@@ -5,7 +5,8 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
 from deckward.rules.fixes.edits import fix, replace
-from deckward.rules.catalogue.ion_states.derives import energy_states, kind_derives, level_label
+from deckward.rules.catalogue.ion_states.derives import energy_states, kind_derives
+from deckward.rules.catalogue.ion_states.wording import level_label
 from deckward.rules.fixes.state_text import StateEditor
 
 _CN = "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"

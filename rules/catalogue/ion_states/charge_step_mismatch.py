@@ -4,14 +4,9 @@ from __future__ import annotations
 from deckward.grammar.findings import Related, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
-from .derives import (
-    EA,
-    charge_text,
-    difference_span,
-    difference_states,
-    ion_derives,
-    span_text,
-)
+from .derives import EA, difference_states, ion_derives
+from .wording import charge_text, span_text
+from .ion_fixes import difference_span
 from .._examples import CN_RADICAL
 
 _HEAD = CN_RADICAL

@@ -4,16 +4,9 @@ from __future__ import annotations
 from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
-from .derives import (
-    EA,
-    IE,
-    energy_difference_fix,
-    ion_derives,
-    level_label,
-    method_text,
-    orbital_method,
-    orbital_phrase,
-)
+from .derives import EA, IE, ion_derives, orbital_method
+from .wording import level_label, method_text, orbital_phrase
+from .ion_fixes import energy_difference_fix
 from .species import unbound_anion_in
 from .._examples import NO2_GEOMETRY
 

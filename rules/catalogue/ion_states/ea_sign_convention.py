@@ -5,14 +5,9 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
 from deckward.rules.fixes.edits import fix
-from .derives import (
-    EA,
-    charge_text,
-    difference_span,
-    reversed_differences,
-    span_text,
-    swap_edits,
-)
+from .derives import EA, reversed_differences
+from .wording import charge_text, span_text
+from .ion_fixes import difference_span, swap_edits
 
 _HEAD = (
     "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"

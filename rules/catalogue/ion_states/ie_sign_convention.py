@@ -5,14 +5,9 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
 from deckward.rules.fixes.edits import fix
-from .derives import (
-    IE,
-    charge_text,
-    difference_span,
-    reversed_differences,
-    span_text,
-    swap_edits,
-)
+from .derives import IE, reversed_differences
+from .wording import charge_text, span_text
+from .ion_fixes import difference_span, swap_edits
 from .._examples import NO2_NEUTRAL_AND_CATION
 
 _HEAD = NO2_NEUTRAL_AND_CATION

@@ -4,15 +4,9 @@ from __future__ import annotations
 from deckward.grammar.findings import Applicability, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
-from .derives import (
-    IE,
-    energy_difference_fix,
-    ion_derives,
-    level_label,
-    method_text,
-    orbital_method,
-    orbital_phrase,
-)
+from .derives import IE, ion_derives, orbital_method
+from .wording import level_label, method_text, orbital_phrase
+from .ion_fixes import energy_difference_fix
 from .._examples import NO2_NEUTRAL_AND_CATION
 
 _HEAD = NO2_NEUTRAL_AND_CATION

@@ -5,7 +5,8 @@ from deckward.grammar.findings import Applicability, Related, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
 from deckward.rules.fixes.edits import fix
-from .derives import energy_states, level_differences, level_label, span_text
+from .derives import energy_states
+from .wording import level_differences, level_label, span_text
 from deckward.rules.fixes.state_text import StateEditor
 from .._examples import CN_RADICAL
 

@@ -11,13 +11,13 @@ from .derives import (
     NOUN,
     STEP,
     IonDerive,
-    add_ion_fix,
-    charge_text,
     geometry_name,
     ion_derives,
     orbital_pair,
     partner,
 )
+from .wording import charge_text
+from .ion_fixes import add_ion_fix
 from .species import anion_is_unbound, unbound_anion_in
 
 _CNL = "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"

@@ -6,15 +6,9 @@ from deckward.grammar.findings import Applicability, RuleInfo, Severity, TextEdi
 from deckward.rules.engine.context import Context
 from deckward.rules.knowledge.deck_facts import linear_form
 from deckward.rules.fixes.edits import fix, replace
-from .derives import (
-    EA,
-    IE,
-    level_label,
-    method_text,
-    orbital_method,
-    partner,
-    ion_state,
-)
+from .derives import EA, IE, orbital_method, partner
+from .wording import level_label, method_text
+from .ion_fixes import ion_state
 from .._examples import NO2_GEOMETRY
 
 _HEAD = (

@@ -5,7 +5,8 @@ from deckward.grammar.findings import Applicability, Related, RuleInfo, Severity
 
 from deckward.rules.engine.context import Context
 from deckward.rules.fixes.edits import fix, replace
-from .derives import QUANTITY_NOUN, energy_states, kind_derives, span_text
+from .derives import QUANTITY_NOUN, energy_states, kind_derives
+from .wording import span_text
 
 _HEAD = (
     'study "cn-screening" { goal = electron_affinity kind = vertical }\n'
