@@ -31,6 +31,7 @@ Pure Python: imported on the editor path, so no pyscf and no numpy.
 """
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from typing import Optional, Sequence
@@ -338,7 +339,18 @@ def verdict(symbol: str, smallest_exponents: Sequence[Sequence[float]],
     known, DEFAULT_BINDING_EV assumed), and for a ``correlated`` method also
     l + 1.  Raises ValueError for a symbol without a tabulated ionization
     energy.
+
+    The verdict depends on these four values only, and a repository asks
+    about the same few element/basis pairs over and over: verdicts are
+    remembered (they are immutable).
     """
+    return _verdict_of(symbol, tuple(tuple(x) for x in smallest_exponents),
+                       None if binding_ev is None else float(binding_ev), bool(correlated))
+
+
+@functools.lru_cache(maxsize=4096)
+def _verdict_of(symbol: str, smallest_exponents: tuple, binding_ev: Optional[float],
+                correlated: bool) -> DiffuseVerdict:
     canon = _canonical(symbol)
     per_l = [list(x) for x in smallest_exponents] + [[]] * max(0, 3 - len(smallest_exponents))
     smallest = [_smallest(x) for x in per_l]
