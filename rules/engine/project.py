@@ -144,35 +144,42 @@ class Projects:
         self.live = live
         self._projects: dict[tuple[str, Optional[str]], Project] = {}
         self._found: dict[str, Optional[str]] = {}  # folder -> its configuration (not when live)
+        self._of_path: dict[tuple[str, Optional[str]], Project] = {}  # (deck, anchor) -> project (not when live)
 
-    def _config_file(self, path: str) -> Optional[str]:
+    def _config_file(self, absolute: str) -> Optional[str]:
         if self.explicit is not None:
             return self.explicit
         if self.live:  # a deckward.yaml created in the editor applies at once
-            return find_config_file(path)
-        folder = os.path.abspath(path)
-        if not os.path.isdir(folder):
-            folder = os.path.dirname(folder)
+            return find_config_file(absolute)
+        folder = absolute if os.path.isdir(absolute) else os.path.dirname(absolute)
         if folder not in self._found:
             self._found[folder] = find_config_file(folder)
         return self._found[folder]
 
     def for_path(self, path: str, anchor: Optional[str] = None) -> Project:
         """The project of the deck ``path``; ``anchor`` is the folder (or file)
-        it was named under on the command line."""
-        config_path = self._config_file(path)
+        it was named under on the command line.  Outside the editor the
+        answer is remembered per deck (a repository check asks twice for
+        each of thousands of decks)."""
+        absolute = os.path.abspath(path)
+        if not self.live:
+            known = self._of_path.get((absolute, anchor))
+            if known is not None:
+                return known
+        config_path = self._config_file(absolute)
         if config_path is not None:
             root = os.path.dirname(os.path.abspath(config_path))
         else:
-            root = self._anchor_root(path, anchor)
-        key = (os.path.realpath(root), os.path.abspath(config_path) if config_path else None)
+            root = self._anchor_root(absolute, anchor)
+        key = (root, os.path.abspath(config_path) if config_path else None)
         project = self._projects.get(key)
         if project is None:
             project = self._projects[key] = Project(root, config_path, self.loader, self.live)
+        if not self.live:
+            self._of_path[(absolute, anchor)] = project
         return project
 
-    def _anchor_root(self, path: str, anchor: Optional[str]) -> str:
-        absolute = os.path.abspath(path)
+    def _anchor_root(self, absolute: str, anchor: Optional[str]) -> str:
         if anchor is not None:
             folder = os.path.abspath(anchor)
             return folder if os.path.isdir(folder) else os.path.dirname(folder)
@@ -191,6 +198,7 @@ class Projects:
             project.reload()
         self._projects.clear()
         self._found.clear()
+        self._of_path.clear()
 
     def config_for(self, path: str, anchor: Optional[str] = None) -> Config:
         return self.for_path(path, anchor).config
