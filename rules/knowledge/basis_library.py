@@ -23,8 +23,10 @@ spaces removed (``normalize``), so ``6-31+G*``, ``6-31+g*`` and ``631+g*``
 are one basis.
 
 Loading is lazy.  Importing this module reads nothing; the first lookup
-reads the names and headers; one basis's per-element data are parsed the
-first time they are asked for.
+reads the names and headers; the records are read when the first element
+data are asked for, and one basis's are parsed the first time they are.
+Both are read from a copy in the cache folder that loads quicker than the
+compressed JSON (``grammar/derived_cache.py``).
 """
 
 from __future__ import annotations
@@ -34,6 +36,8 @@ import zlib
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
+
+from deckward.grammar import derived_cache
 
 _INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index.json.gz"
 _BSE_INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index_bse.json.gz"
@@ -89,20 +93,33 @@ def normalize(word: str) -> str:
     return word.lower().replace("-", "").replace("_", "").replace(" ", "")
 
 
+def _split(path: Path) -> dict:
+    # zlib with wbits=31 reads the gzip container without importing gzip.
+    index = json.loads(zlib.decompress(path.read_bytes(), 31))
+    records = index.pop("records")
+    return {"head": index, "records": records}
+
+
+def _load_index(path: Path, part: str):
+    """The names and headers (``head``) or the per-basis records of an
+    index, decoded once and then kept in the cache folder
+    (``grammar.derived_cache``), so a start reads only what it asks for."""
+    return derived_cache.load(str(path), part, lambda: _split(path))
+
+
 @lru_cache(maxsize=1)
 def _index() -> dict:
-    # zlib with wbits=31 reads the gzip container without importing gzip.
-    return json.loads(zlib.decompress(_INDEX_FILE.read_bytes(), 31))
+    return _load_index(_INDEX_FILE, "head")
 
 
 @lru_cache(maxsize=1)
 def _bse_index() -> dict:
-    return json.loads(zlib.decompress(_BSE_INDEX_FILE.read_bytes(), 31))
+    return _load_index(_BSE_INDEX_FILE, "head")
 
 
 @lru_cache(maxsize=None)
 def _bse_records(name: str) -> dict:
-    return json.loads(_bse_index()["records"][name])
+    return json.loads(_all_bse_records()[name])
 
 
 def index_metadata() -> dict:
@@ -111,9 +128,19 @@ def index_metadata() -> dict:
     return {k: idx[k] for k in ("format", "source", "pyscf_version", "normalisation")}
 
 
+@lru_cache(maxsize=1)
+def _all_records() -> dict:
+    return _load_index(_INDEX_FILE, "records")
+
+
+@lru_cache(maxsize=1)
+def _all_bse_records() -> dict:
+    return _load_index(_BSE_INDEX_FILE, "records")
+
+
 @lru_cache(maxsize=None)
 def _records(name: str) -> dict:
-    return json.loads(_index()["records"][name])
+    return json.loads(_all_records()[name])
 
 
 @lru_cache(maxsize=None)

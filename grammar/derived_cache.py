@@ -1,0 +1,67 @@
+"""Data derived from a shipped file, kept on disk in a form quick to load.
+
+A compressed JSON index costs tens of milliseconds to decompress and decode
+on every start of the command line; the same data written with ``marshal``
+loads in a fraction of that.  ``load`` returns one named part of what
+``build()`` derives from ``source``, read from the cache folder (the one of
+the grammar tables, ``DECKWARD_CACHE_DIR``) when an entry made from the
+same file (path, size, modification time) by the same Python exists, else
+built, written for the next start and returned.  A cache folder that cannot
+be written or an entry that cannot be read only means building again.
+"""
+from __future__ import annotations
+
+import marshal
+import os
+import sys
+import zlib
+
+from .parser import _cache_dir
+
+_FORMAT = 1
+
+
+def _stamp(source: str):
+    st = os.stat(source)
+    return (_FORMAT, sys.implementation.cache_tag, marshal.version, os.path.abspath(source), st.st_size,
+            st.st_mtime_ns)
+
+
+def _entry(source: str, part: str) -> str:
+    name = os.path.basename(source).split(".")[0]
+    where = zlib.crc32(os.path.abspath(source).encode("utf-8", "surrogatepass"))
+    return os.path.join(_cache_dir(), "derived", f"{name}-{where:08x}.{part}.marshal")
+
+
+def load(source: str, part: str, build):
+    """Part ``part`` of ``build()`` (a dict of marshal-able values by part
+    name) for the file ``source`` as it is now."""
+    try:
+        stamp = _stamp(source)
+    except OSError:
+        return build()[part]
+    try:
+        with open(_entry(source, part), "rb") as f:
+            stored, value = marshal.loads(f.read())  # marshal.load(f) reads in small pieces
+        if stored == stamp:
+            return value
+    except (OSError, EOFError, ValueError, TypeError):
+        pass
+    parts = build()
+    for name, value in parts.items():
+        _write(_entry(source, name), (stamp, value))
+    return parts[part]
+
+
+def _write(path: str, entry) -> None:
+    tmp = f"{path}.{os.getpid()}.tmp"
+    try:
+        os.makedirs(os.path.dirname(path), exist_ok=True)
+        with open(tmp, "wb") as f:
+            f.write(marshal.dumps(entry))
+        os.replace(tmp, path)
+    except (OSError, ValueError):
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
