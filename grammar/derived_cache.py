@@ -8,6 +8,9 @@ the grammar tables, ``DECKWARD_CACHE_DIR``) when an entry made from the
 same file (path, size, modification time) by the same Python exists, else
 built, written for the next start and returned.  A cache folder that cannot
 be written or an entry that cannot be read only means building again.
+``recall`` and ``remember`` do the same for a small file read anyway,
+keyed by its whole text (the configuration: reading it as YAML costs more
+than the rest of a start's configuration handling).
 """
 from __future__ import annotations
 
@@ -65,3 +68,22 @@ def _write(path: str, entry) -> None:
             os.unlink(tmp)
         except OSError:
             pass
+
+
+def recall(source: str, part: str, text: str):
+    """What ``remember`` stored for ``source`` when it held exactly ``text``
+    (for a small file whose content is read anyway), else None."""
+    try:
+        with open(_entry(source, part), "rb") as f:
+            stored, value = marshal.loads(f.read())
+    except (OSError, EOFError, ValueError, TypeError):
+        return None
+    return value if stored == _text_stamp(text) else None
+
+
+def remember(source: str, part: str, text: str, value) -> None:
+    _write(_entry(source, part), (_text_stamp(text), value))
+
+
+def _text_stamp(text: str):
+    return (_FORMAT, sys.implementation.cache_tag, marshal.version, text)

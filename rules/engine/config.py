@@ -14,6 +14,7 @@ import os
 from dataclasses import dataclass, field
 from typing import Optional
 
+from deckward.grammar import derived_cache
 from deckward.grammar.build import did_you_mean
 from deckward.grammar.findings import Finding, RuleInfo, Severity
 from deckward.grammar.text_index import LineIndex
@@ -69,8 +70,6 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
     """Read and validate a configuration file (``None``: defaults)."""
     if path is None:
         return Config()
-    import yaml  # only when there is a file to read: keeps start-up light
-
     cfg = Config(path=path, root=os.path.dirname(os.path.abspath(path)))
     try:
         with open(path, "rb") as f:
@@ -80,6 +79,11 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
         cfg.findings.append(Finding("invalid-config", Severity.ERROR, f"cannot read the configuration: {e}",
                                     LineIndex("", path).span(0, 0)))
         return cfg
+    remembered = derived_cache.recall(path, "config", text)
+    if remembered is not None and all(rid in known_rules for rid in remembered["severities"]):
+        return _apply(cfg, remembered)
+    import yaml  # only when there is a file to read: keeps start-up light
+
     index = LineIndex(text, path)
 
     def report(node, message: str) -> None:
@@ -143,6 +147,19 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
                            + (", not infinite" if number == float("inf") else ""))
                     continue
                 target[k.value] = number
+    if not cfg.findings and not cfg.clusters:  # a clean file is read as YAML once (grammar/derived_cache.py)
+        derived_cache.remember(path, "config", text, {
+            "severities": {rid: None if sev is None else sev.value for rid, sev in cfg.severities.items()},
+            "exclude": cfg.exclude, "probe": cfg.probe, "run": cfg.run})
+    return cfg
+
+
+def _apply(cfg: Config, remembered: dict) -> Config:
+    """A configuration as a clean read of the same text left it."""
+    cfg.severities = {rid: None if word is None else Severity(word) for rid, word in remembered["severities"].items()}
+    cfg.exclude = list(remembered["exclude"])
+    cfg.probe = dict(remembered["probe"])
+    cfg.run = dict(remembered["run"])
     return cfg
 
 
