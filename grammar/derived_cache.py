@@ -4,7 +4,7 @@ A compressed JSON index costs tens of milliseconds to decompress and decode
 on every start of the command line; the same data written with ``marshal``
 loads in a fraction of that.  ``load`` returns one named part of what
 ``build()`` derives from ``source``, read from the cache folder (the one of
-the grammar tables, ``DECKWARD_CACHE_DIR``) when an entry made from the
+``DECKWARD_CACHE_DIR``, else ``~/.cache/deckward``) when an entry made from the
 same file (path, size, modification time) by the same Python exists, else
 built, written for the next start and returned.  A cache folder that cannot
 be written or an entry that cannot be read only means building again.

@@ -2,12 +2,12 @@
 
 ``parse_text`` never raises: every problem becomes a ``syntax-error``
 finding with a located message saying what was expected and what was found.
-The Lark parser tables are cached on disk (keyed by the grammar and the Lark
-version), so starting the command line or the editor does not rebuild them.
+The parser is ``deck_parser.py``, Lark's stand-alone LALR parser generated
+from ``deck.lark`` (``python -m deckward.grammar.make_parser``): starting the
+command line or the editor neither imports Lark nor rebuilds or loads tables.
 """
 from __future__ import annotations
 
-import hashlib
 import os
 from collections import OrderedDict
 from dataclasses import dataclass
@@ -39,26 +39,18 @@ def _cache_dir() -> str:
     return base
 
 
+def _lark():
+    """The module that holds the parser and its token and error classes."""
+    from . import deck_parser
+
+    return deck_parser
+
+
 def get_parser():
-    """The shared Lark parser, built once per process from the on-disk cache."""
+    """The shared LALR parser of deck.lark, built once per process."""
     global _parser
-    if _parser is not None:
-        return _parser
-    import lark
-
-    text = grammar_text()
-    options = dict(parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=False)
-    digest = hashlib.sha256((text + lark.__version__).encode()).hexdigest()[:16]
-    import tempfile
-
-    for folder in (_cache_dir(), tempfile.gettempdir()):
-        try:
-            os.makedirs(folder, exist_ok=True)
-            _parser = lark.Lark(text, cache=os.path.join(folder, f"grammar-{digest}.lark-cache"), **options)
-            return _parser
-        except Exception:  # an unwritable or corrupt cache: try the next place
-            continue
-    _parser = lark.Lark(text, **options)
+    if _parser is None:
+        _parser = _lark().Lark_StandAlone()
     return _parser
 
 
@@ -213,7 +205,7 @@ def _parse_chunk(parser, body: str, chunk_len: int):
     Remembered by text: in the editor, typing in one statement re-parses
     that statement only (positions in the tree are relative to the chunk,
     so a cached tree is valid wherever the statement moves)."""
-    import lark
+    lark = _lark()
 
     key = (body, chunk_len)
     hit = _CHUNK_CACHE.get(key)
@@ -231,7 +223,7 @@ def _parse_chunk(parser, body: str, chunk_len: int):
 
     try:
         tree = parser.parse(body, on_error=on_error)
-    except lark.exceptions.UnexpectedInput as e:
+    except lark.UnexpectedInput as e:
         if not errors or errors[-1] is not e:
             errors.append(e)
         tree = None
@@ -260,10 +252,10 @@ def _drop_unfinished_setting(e, body: str) -> None:
     unfinished when what follows closes the block, starts a later line or is
     itself a key (``x =``); ``method hf`` alone is a missing ``=``, reported
     at ``hf``."""
-    import lark
+    lark = _lark()
 
     ip = getattr(e, "interactive_parser", None)
-    if not isinstance(e, lark.exceptions.UnexpectedToken) or ip is None or e.token.start_pos is None:
+    if not isinstance(e, lark.UnexpectedToken) or ip is None or e.token.start_pos is None:
         return
     state = ip.parser_state
     values, token = state.value_stack, e.token
@@ -299,7 +291,7 @@ def _drop_unfinished_setting(e, body: str) -> None:
     try:
         for t in refeed:
             ip.feed_token(t)
-    except lark.exceptions.UnexpectedInput:
+    except lark.UnexpectedInput:
         state.state_stack[:], values[:] = saved
         return
     e.unfinished = (key.start_pos, typed_end.end_pos, message)
@@ -311,13 +303,13 @@ def _is_name(text: str) -> bool:
 
 
 def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
-    import lark
+    lark = _lark()
 
     unfinished = getattr(e, "unfinished", None)
     if unfinished is not None and unfinished[0] < chunk_len:
         return unfinished[0], min(unfinished[1], chunk_len), unfinished[2]
 
-    if isinstance(e, lark.exceptions.UnexpectedToken):
+    if isinstance(e, lark.UnexpectedToken):
         tok = e.token
         if tok.type == "$END" or tok.start_pos is None:
             pos = content_end(body[:chunk_len])
@@ -328,7 +320,7 @@ def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
             pos = content_end(body[:chunk_len])
             return (max(0, pos - 1), pos, f"unexpected end of the block: expected {describe_expected(e.expected)}")
         return start, end, f"expected {describe_expected(e.expected)} but found {_describe_token(tok)}"
-    if isinstance(e, lark.exceptions.UnexpectedCharacters):
+    if isinstance(e, lark.UnexpectedCharacters):
         pos = min(e.pos_in_stream, chunk_len)
         ch = body[pos : pos + 1] if pos < len(body) else ""
         if ch == '"':
@@ -338,7 +330,7 @@ def _error_location(e, body: str, chunk_len: int) -> tuple[int, int, str]:
         if allowed:
             return pos, pos + 1, f"unexpected character `{shown}`: expected {describe_expected(allowed)}"
         return pos, pos + 1, f"unexpected character `{shown}`"
-    if isinstance(e, lark.exceptions.UnexpectedEOF):
+    if isinstance(e, lark.UnexpectedEOF):
         pos = content_end(body[:chunk_len])
         return (max(0, pos - 1), pos, f"unexpected end of the statement: expected {describe_expected(e.expected)}")
     return 0, 0, f"the statement could not be parsed ({type(e).__name__})"

@@ -31,7 +31,7 @@ ALLOWED_DECKWARD = {
     "deckward", "deckward.grammar", "deckward.grammar.build", "deckward.grammar.findings",
     "deckward.grammar.language_rules", "deckward.grammar.model", "deckward.grammar.parser",
     "deckward.grammar.resolve", "deckward.grammar.scanner", "deckward.grammar.text_index",
-    "deckward.grammar.derived_cache",
+    "deckward.grammar.derived_cache", "deckward.grammar.deck_parser",
     "deckward.grammar.numbers", "deckward.grammar.safe_open", "deckward.grammar.wording",
     "deckward.rules",
     "deckward.rules.knowledge", "deckward.rules.knowledge.basis_families", "deckward.rules.knowledge.basis_library",
@@ -49,13 +49,15 @@ ALLOWED_DECKWARD = {
     "deckward.server.format_text", "deckward.server.formats", "deckward.server.report_options",
     "deckward.server.scale_options",
 }
-# Besides the standard library: the parser (and the regular-expression
-# package it uses when it is installed).
-ALLOWED_THIRD_PARTY = {"lark", "regex"}
+# Nothing besides the standard library: the parser is Lark's stand-alone
+# form of the grammar (grammar/deck_parser.py), so Lark itself (and the
+# regular-expression package it tries) is not imported, nor is YAML
+# without a configuration file.
+ALLOWED_THIRD_PARTY: set = set()
 # Standard-library modules that would mean a heavier machinery got in
-# (Lark itself imports tempfile, logging and threading).
+# (Lark's own package imports tempfile, logging, pickle and threading).
 FORBIDDEN_STDLIB = {"concurrent", "multiprocessing", "asyncio", "sqlite3", "importlib.resources", "subprocess",
-                    "gzip", "zipfile"}
+                    "gzip", "zipfile", "tempfile", "logging", "pickle", "threading"}
 
 
 def _imported(args, cwd):
