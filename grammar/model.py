@@ -67,12 +67,16 @@ class BasisSpec:
 
 @dataclass(frozen=True)
 class Use:
+    """A ``use "file.deck"`` statement."""
+
     path: Located[str]
     span: Span
 
 
 @dataclass(frozen=True)
 class Study:
+    """The ``study`` statement: what the deck computes and how it is compared."""
+
     span: Span
     keyword_span: Span
     title: Optional[Located[str]] = None
@@ -84,6 +88,8 @@ class Study:
 
 @dataclass(frozen=True)
 class Atom:
+    """One atom line of a geometry (a symbol, three coordinates, maybe ``ghost``)."""
+
     symbol: Located[str]
     xyz: tuple[float, float, float]  # in the geometry's own units
     xyz_spans: tuple[Span, Span, Span]
@@ -93,6 +99,8 @@ class Atom:
 
 @dataclass(frozen=True)
 class Geometry:
+    """A ``geometry`` statement: atoms written inline or read from an .xyz file."""
+
     name: Located[str]
     span: Span
     units: Optional[Located[str]]  # None: angstrom by default
@@ -122,6 +130,8 @@ class Shell:
 
 @dataclass(frozen=True)
 class BasisSet:
+    """A ``basis_set`` statement: a library set with ``add`` shells on top."""
+
     name: Located[str]
     span: Span
     source: Optional[BasisSpec]  # ``from``
@@ -149,6 +159,8 @@ class LevelSettings:
 
 @dataclass(frozen=True)
 class Level:
+    """A ``level`` statement: method, basis and the other level settings."""
+
     name: Located[str]
     span: Span
     settings: LevelSettings
@@ -156,6 +168,8 @@ class Level:
 
 @dataclass(frozen=True)
 class GeometryRef:
+    """A state's geometry: a name, or ``optimize(name)``."""
+
     name: Located[str]
     optimize: bool
     span: Span  # the whole value, ``optimize(x)`` included
@@ -163,6 +177,8 @@ class GeometryRef:
 
 @dataclass(frozen=True)
 class State:
+    """A ``state`` statement: a geometry, a level, charge and multiplicity."""
+
     name: Located[str]
     span: Span
     geometry: Optional[GeometryRef]
@@ -179,18 +195,24 @@ class State:
 
 @dataclass(frozen=True)
 class Number:
+    """A number in a derive's expression."""
+
     value: float
     span: Span
 
 
 @dataclass(frozen=True)
 class EnergyOf:
+    """``energy(state)`` in a derive's expression."""
+
     state: Located[str]
     span: Span
 
 
 @dataclass(frozen=True)
 class OrbitalOf:
+    """``orbital(state, homo)`` and its kin in a derive's expression."""
+
     state: Located[str]
     orbital: Located[str]  # "homo" or "lumo"
     offset: int  # homo-N -> -N, lumo+N -> +N
@@ -200,6 +222,8 @@ class OrbitalOf:
 
 @dataclass(frozen=True)
 class Unary:
+    """A sign before an operand of a derive's expression."""
+
     op: str  # "-" or "+"
     operand: "Expr"
     span: Span
@@ -207,6 +231,8 @@ class Unary:
 
 @dataclass(frozen=True)
 class Binary:
+    """Two operands of a derive's expression and the operator between them."""
+
     op: str  # + - * /
     left: "Expr"
     right: "Expr"
@@ -240,6 +266,8 @@ class MeasuredReference:
 
 @dataclass(frozen=True)
 class Derive:
+    """A ``derive`` statement: a named quantity computed from state energies."""
+
     name: Located[str]
     span: Span
     quantity: Optional[Located[str]]  # ``as QUANTITY``
@@ -254,6 +282,8 @@ class Derive:
 
 @dataclass(frozen=True)
 class Comment:
+    """A ``#`` comment and where it stands."""
+
     text: str  # without the leading '#'
     span: Span
     own_line: bool  # nothing but white space before it on its line

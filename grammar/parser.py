@@ -117,12 +117,16 @@ def _describe_token(token) -> str:
 
 @dataclass
 class ParsedStatement:
+    """The tree of one statement and the chunk of text it came from."""
+
     tree: object  # lark.Tree of one statement
     chunk: Chunk
 
 
 @dataclass
 class ParseOutput:
+    """What ``parse_text`` gives: statements, syntax errors, comments, broken chunks."""
+
     statements: list[ParsedStatement]
     findings: list[Finding]
     comments: list[tuple[int, int, bool]]

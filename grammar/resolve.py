@@ -30,6 +30,8 @@ MAX_SUGGESTIONS = 100  # undefined names of one workspace that get a did-you-mea
 
 @dataclass(frozen=True)
 class ParsedFile:
+    """One file as parsed once by a ``Loader``: its deck, findings and digest."""
+
     path: str
     deck: m.Deck
     findings: tuple[Finding, ...]
@@ -113,6 +115,8 @@ class Loader:
 
 @dataclass(frozen=True)
 class Definition:
+    """Where a name is defined: its kind, the node and the file."""
+
     kind: str  # geometry | basis_set | level | state | derive
     name: m.Located[str]
     node: object
@@ -130,6 +134,8 @@ class Reference:
 
 @dataclass(frozen=True)
 class ResolvedState:
+    """A state with its geometry, level and effective settings linked."""
+
     state: m.State
     path: str
     geometry: Optional[m.Geometry]

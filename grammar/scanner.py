@@ -38,6 +38,8 @@ _TOKEN = re.compile(
 
 @dataclass(frozen=True)
 class OpenBlock:
+    """A ``{`` still open while scanning."""
+
     keyword: str  # statement keyword that owns the block
     keyword_start: int
     brace_start: int
@@ -57,6 +59,8 @@ class Chunk:
 
 @dataclass
 class ScanResult:
+    """Statement chunks, comments and unbalanced braces of one text."""
+
     chunks: list[Chunk]
     comments: list[tuple[int, int, bool]]  # (start, end, own_line)
     # (block, offset where the next statement started or len(text) at EOF)

@@ -24,6 +24,8 @@ class UsageError(Exception):
 
 @dataclass
 class CheckResult:
+    """The decks checked and their findings, ready for a report."""
+
     files: list[str]
     findings: list[Finding]  # sorted; suppressed ones included (``suppressed`` set)
     config: Config
