@@ -1,7 +1,5 @@
 """``python -m deckward``: the same entry point as the ``deckward`` command."""
-import sys
-
-from deckward.server.cli import main
+from deckward.server.cli import run_program
 
 if __name__ == "__main__":
-    sys.exit(main())
+    run_program()
