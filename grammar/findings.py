@@ -10,8 +10,10 @@ the first producer and nothing may import upwards.
 from __future__ import annotations
 
 import enum
-from dataclasses import dataclass, field, replace
+from dataclasses import field, replace
 from typing import Any, Optional
+
+from .records import record
 
 
 class Severity(str, enum.Enum):
@@ -38,7 +40,7 @@ class Applicability(str, enum.Enum):
     RISKY = "risky"
 
 
-@dataclass(frozen=True, order=True)
+@record(frozen=True, order=True)
 class Span:
     """A range of source text: character offsets (end exclusive) and the
     matching 1-based line and column (columns count code points, the end
@@ -67,7 +69,7 @@ class Span:
         }
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class TextEdit:
     """Replace the text of ``span`` with ``new_text`` (an insertion when the
     span is empty)."""
@@ -81,7 +83,7 @@ class TextEdit:
         return d
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Fix:
     """A titled list of edits against the original text."""
 
@@ -101,7 +103,7 @@ class Fix:
         }
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Related:
     """Another place that explains a finding ("the level is defined here")."""
 
@@ -109,7 +111,7 @@ class Related:
     message: str
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Finding:
     """One thing deckward has to say about a deck."""
 
@@ -156,7 +158,7 @@ class Finding:
         return d
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class RuleInfo:
     """Metadata of one rule, kept beside the code that reports it; the
     user documentation (``deckward rules``, ``deckward explain``,

@@ -7,10 +7,11 @@ states know their geometry, level and effective settings.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Generic, Optional, TypeVar, Union
 
 from .findings import Span
+from .records import record
 
 T = TypeVar("T")
 
@@ -33,7 +34,7 @@ SHELL_LETTERS = "spdfghi"
 SPINS = ("alpha", "beta")
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Located(Generic[T]):
     """A value and the span of the text that gave it."""
 
@@ -41,7 +42,7 @@ class Located(Generic[T]):
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class BasisSpec:
     """A basis as written: one word for every element (``default``), and/or a
     map from element symbol to a word.  A word may name a library set or a
@@ -65,7 +66,7 @@ class BasisSpec:
         return tuple(out)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Use:
     """A ``use "file.deck"`` statement."""
 
@@ -73,7 +74,7 @@ class Use:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Study:
     """The ``study`` statement: what the deck computes and how it is compared."""
 
@@ -86,7 +87,7 @@ class Study:
     note: Optional[Located[str]] = None
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Atom:
     """One atom line of a geometry (a symbol, three coordinates, maybe ``ghost``)."""
 
@@ -97,7 +98,7 @@ class Atom:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Geometry:
     """A ``geometry`` statement: atoms written inline or read from an .xyz file."""
 
@@ -114,7 +115,7 @@ class Geometry:
         return self.units.value if self.units else "angstrom"
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Shell:
     """An ``add`` line of a basis_set: one primitive shell."""
 
@@ -128,7 +129,7 @@ class Shell:
         return SHELL_LETTERS.index(self.letter.value.lower())
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class BasisSet:
     """A ``basis_set`` statement: a library set with ``add`` shells on top."""
 
@@ -138,7 +139,7 @@ class BasisSet:
     shells: tuple[Shell, ...]
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class LevelSettings:
     """The keys a level sets and a state may override."""
 
@@ -157,7 +158,7 @@ class LevelSettings:
         )
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Level:
     """A ``level`` statement: method, basis and the other level settings."""
 
@@ -166,7 +167,7 @@ class Level:
     settings: LevelSettings
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class GeometryRef:
     """A state's geometry: a name, or ``optimize(name)``."""
 
@@ -175,7 +176,7 @@ class GeometryRef:
     span: Span  # the whole value, ``optimize(x)`` included
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class State:
     """A ``state`` statement: a geometry, a level, charge and multiplicity."""
 
@@ -193,7 +194,7 @@ class State:
 # --- expressions ---------------------------------------------------------
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Number:
     """A number in a derive's expression."""
 
@@ -201,7 +202,7 @@ class Number:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class EnergyOf:
     """``energy(state)`` in a derive's expression."""
 
@@ -209,7 +210,7 @@ class EnergyOf:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class OrbitalOf:
     """``orbital(state, homo)`` and its kin in a derive's expression."""
 
@@ -220,7 +221,7 @@ class OrbitalOf:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Unary:
     """A sign before an operand of a derive's expression."""
 
@@ -229,7 +230,7 @@ class Unary:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Binary:
     """Two operands of a derive's expression and the operator between them."""
 
@@ -252,7 +253,7 @@ def walk(expr: Expr):
         yield from walk(expr.right)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class MeasuredReference:
     """``reference 3.401 +- 0.001 ev "source"`` after a derive: the value
     the deck compares with, in its own unit (it overrides the reference table)."""
@@ -264,7 +265,7 @@ class MeasuredReference:
     span: Span
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Derive:
     """A ``derive`` statement: a named quantity computed from state energies."""
 
@@ -280,7 +281,7 @@ class Derive:
         return self.unit.value if self.unit else "hartree"
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Comment:
     """A ``#`` comment and where it stands."""
 
@@ -289,7 +290,7 @@ class Comment:
     own_line: bool  # nothing but white space before it on its line
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Deck:
     """One deck file as written (before ``use`` files are loaded)."""
 

@@ -10,10 +10,10 @@ from __future__ import annotations
 
 import os
 from collections import OrderedDict
-from dataclasses import dataclass
 from typing import Optional
 
 from .findings import Finding, Severity
+from .records import record
 from .scanner import STATEMENT_KEYWORDS, Chunk, content_end, scan
 from .text_index import LineIndex
 
@@ -115,7 +115,7 @@ def _describe_token(token) -> str:
     return f"`{value}`"
 
 
-@dataclass
+@record
 class ParsedStatement:
     """The tree of one statement and the chunk of text it came from."""
 
@@ -123,7 +123,7 @@ class ParsedStatement:
     chunk: Chunk
 
 
-@dataclass
+@record
 class ParseOutput:
     """What ``parse_text`` gives: statements, syntax errors, comments, broken chunks."""
 

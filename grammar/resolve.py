@@ -11,12 +11,13 @@ from __future__ import annotations
 import hashlib
 import os
 import re
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Callable, Optional
 
 from . import model as m
 from .build import build_deck
 from .findings import Finding, Related, Severity, Span
+from .records import record
 from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
 
@@ -28,7 +29,7 @@ MAX_NAMES_PER_FILE = 10_000  # definitions read from one file
 MAX_SUGGESTIONS = 100  # undefined names of one workspace that get a did-you-mean
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class ParsedFile:
     """One file as parsed once by a ``Loader``: its deck, findings and digest."""
 
@@ -113,7 +114,7 @@ class Loader:
         return parsed
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Definition:
     """Where a name is defined: its kind, the node and the file."""
 
@@ -123,7 +124,7 @@ class Definition:
     path: str
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Reference:
     """A use of a name: what it refers to (None when undefined)."""
 
@@ -132,7 +133,7 @@ class Reference:
     target: Optional[Definition]
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class ResolvedState:
     """A state with its geometry, level and effective settings linked."""
 
@@ -164,7 +165,7 @@ class ResolvedState:
         return "restricted" if (self.multiplicity or 1) == 1 else "unrestricted"
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Workspace:
     """One deck and everything it uses, resolved."""
 

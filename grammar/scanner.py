@@ -10,7 +10,9 @@ where statements start.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
+from dataclasses import field
+
+from .records import record
 
 STATEMENT_KEYWORDS = frozenset({"use", "study", "geometry", "basis_set", "level", "state", "derive"})
 # Tokens after which a keyword-looking word is a name, not a new statement.
@@ -36,7 +38,7 @@ _TOKEN = re.compile(
 )
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class OpenBlock:
     """A ``{`` still open while scanning."""
 
@@ -45,7 +47,7 @@ class OpenBlock:
     brace_start: int
 
 
-@dataclass
+@record
 class Chunk:
     """A stretch of text holding (at most) one statement."""
 
@@ -57,7 +59,7 @@ class Chunk:
     stray_closers: list[int] = field(default_factory=list)  # offsets of unmatched `}`
 
 
-@dataclass
+@record
 class ScanResult:
     """Statement chunks, comments and unbalanced braces of one text."""
 

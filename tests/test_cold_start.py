@@ -31,7 +31,7 @@ ALLOWED_DECKWARD = {
     "deckward", "deckward.grammar", "deckward.grammar.build", "deckward.grammar.findings",
     "deckward.grammar.language_rules", "deckward.grammar.model", "deckward.grammar.parser",
     "deckward.grammar.resolve", "deckward.grammar.scanner", "deckward.grammar.text_index",
-    "deckward.grammar.derived_cache", "deckward.grammar.deck_parser",
+    "deckward.grammar.derived_cache", "deckward.grammar.deck_parser", "deckward.grammar.records",
     "deckward.grammar.numbers", "deckward.grammar.safe_open", "deckward.grammar.wording",
     "deckward.rules",
     "deckward.rules.knowledge", "deckward.rules.knowledge.basis_families", "deckward.rules.knowledge.basis_library",
