@@ -11,12 +11,13 @@ from __future__ import annotations
 import fnmatch
 import math
 import os
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Optional
 
 from deckward.grammar import derived_cache
 from deckward.grammar.build import did_you_mean
 from deckward.grammar.findings import Finding, RuleInfo, Severity
+from deckward.grammar.records import record
 from deckward.grammar.text_index import LineIndex
 
 CONFIG_NAME = "deckward.yaml"
@@ -38,7 +39,7 @@ CONFIG_RULE = RuleInfo(
 )
 
 
-@dataclass
+@record
 class Config:
     path: Optional[str] = None
     root: Optional[str] = None  # the folder holding the file: the workspace root

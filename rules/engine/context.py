@@ -1,14 +1,14 @@
 """What a rule sees: the resolved workspace, and helpers to report findings."""
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Fix, Related, RuleInfo, Severity, Span
+from deckward.grammar.records import record
 from deckward.grammar.resolve import Workspace
 
 
-@dataclass
+@record
 class Context:
     workspace: Workspace
     info: RuleInfo

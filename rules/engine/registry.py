@@ -13,16 +13,16 @@ from __future__ import annotations
 import importlib
 import pkgutil
 from collections.abc import Set as AbstractSet
-from dataclasses import dataclass
 from typing import Callable, Iterable, Optional
 
 from deckward.grammar.findings import Finding, RuleInfo, Severity
 from deckward.grammar.language_rules import LANGUAGE_RULES
+from deckward.grammar.records import record
 
 from deckward.rules import catalogue
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Rule:
     info: RuleInfo
     check: Optional[Callable[..., Iterable[Finding]]]  # None: reported by the grammar or a probe

@@ -9,11 +9,12 @@ suppression without a reason, and one that suppresses nothing, are reported.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, RuleInfo, Severity, Span
 from deckward.grammar.model import Deck
+from deckward.grammar.records import record
 
 
 SUPPRESSION_RULES = (
@@ -40,7 +41,7 @@ SUPPRESSION_RULES = (
 )
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Suppression:
     ids: tuple[str, ...]
     reason: Optional[str]

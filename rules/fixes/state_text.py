@@ -10,11 +10,11 @@ ending (``edits.insert_lines_after``).
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
 from typing import Optional
 
 from deckward.grammar import model as m
 from deckward.grammar.findings import Span, TextEdit
+from deckward.grammar.records import record
 from deckward.grammar.text_index import LineIndex
 
 from .edits import indentation_of_line, insert_lines_after, replace
@@ -23,7 +23,7 @@ _KEY_CHARS = re.compile(r"[A-Za-z0-9_]")
 _KEY_EQUALS = re.compile(r"^([ \t]*)([A-Za-z_][A-Za-z0-9_]*)([ \t]*)=")
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Setting:
     """One ``key = value`` of a state as written."""
 
@@ -75,7 +75,7 @@ def is_one_line(state: m.State) -> bool:
     return state.span.line == state.span.end_line
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Style:
     """How a state block is laid out."""
 

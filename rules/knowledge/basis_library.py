@@ -33,11 +33,11 @@ from __future__ import annotations
 
 import json
 import zlib
-from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
 from deckward.grammar import derived_cache
+from deckward.grammar.records import record
 
 _INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index.json.gz"
 _BSE_INDEX_FILE = Path(__file__).resolve().parent / "data" / "basis_index_bse.json.gz"
@@ -49,7 +49,7 @@ ZETA_LEVELS = ("minimal", "double", "triple", "quadruple", "quintuple", "unknown
 _LIGHT_ATOMS = ("H", "He")
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class BasisInfo:
     """One library basis set.
 
@@ -73,7 +73,7 @@ class BasisInfo:
     source: str = "pyscf"  # "pyscf" or "bse": the library whose copy the runner uses
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class ElementBasis:
     """What one basis yields for one element.
 
@@ -165,7 +165,7 @@ def _info_from_header(name: str, header: dict, source: str = "pyscf", extra_elem
 # ------------------------------------------------------- Pople suffixes
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class _PopleSuffix:
     base: str  # canonical name of the base set, e.g. "6-311++g"
     prefix: str  # polarisation file family, e.g. "6-311g"

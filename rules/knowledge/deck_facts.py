@@ -7,10 +7,11 @@ energies, and which basis functions an element of a state really gets
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Optional
 
 from deckward.grammar import model as m
+from deckward.grammar.records import record
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 
@@ -39,7 +40,7 @@ def lowest_multiplicity(electrons: int) -> int:
 # --- expressions -----------------------------------------------------------
 
 
-@dataclass
+@record
 class LinearForm:
     """An expression as sum(c_s * E(s)) + sum(c_o * eps(o)) + constant."""
 
@@ -106,7 +107,7 @@ def linear_form(expr: m.Expr) -> LinearForm:
     return LinearForm(linear=False)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class EnergyDifference:
     """E(plus) - E(minus) (times a positive factor) inside a derive."""
 
@@ -141,7 +142,7 @@ def states_of(derive: m.Derive) -> list[str]:
 # --- basis functions per element ------------------------------------------
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class ElementBasis:
     """What one element of a state gets: a library word (if any) and the
     ``add`` shells of a deck basis_set."""

@@ -14,15 +14,16 @@ marks them with the ``ghost`` flag, so ``lookup`` knows only real elements.
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 from typing import Iterable
 
+from deckward.grammar.records import record
+
 _ELEMENTS_FILE = Path(__file__).resolve().parent / "data" / "elements.json"
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Element:
     """One chemical element.
 

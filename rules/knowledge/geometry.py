@@ -23,10 +23,10 @@ Importing this module imports no PySCF.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Iterable, Optional
 
 from deckward.grammar import model as m
+from deckward.grammar.records import record
 
 from . import elements
 from .units import BOHR_IN_ANGSTROM
@@ -39,7 +39,7 @@ SHORTEST_BOND_RATIO = 0.7
 NOBLE_GASES = frozenset({"He", "Ne", "Ar", "Kr", "Xe", "Rn", "Og"})
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Site:
     """One atom of a geometry whose element and covalent radius are known."""
 
@@ -55,7 +55,7 @@ class Site:
         return f"{self.symbol}{self.index}" + (" (ghost)" if self.atom.ghost else "")
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Pair:
     """Two sites, their distance (angstrom) and d / (r_A + r_B)."""
 
@@ -206,7 +206,7 @@ def too_close_pairs(geometry: m.Geometry) -> list[Pair]:
     return [p for p in pairs_within(sites(geometry), TOO_CLOSE_RATIO) if p.ratio < TOO_CLOSE_RATIO]
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class TooClose:
     """Atoms too close to ``anchor``: each pair has ``anchor`` as ``a``.
 
@@ -347,7 +347,7 @@ def plausible_bond(ratio: float) -> bool:
     return SHORTEST_BOND_RATIO <= ratio <= BOND_TOLERANCE
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class UnitsVerdict:
     """The geometry's numbers read as a bonded molecule only in ``likely``."""
 

@@ -28,11 +28,12 @@ Words are matched case-insensitively, ignoring '-', '_' and spaces
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from functools import lru_cache
 
+from deckward.grammar.records import record
 
-@dataclass(frozen=True)
+
+@record(frozen=True)
 class MethodInfo:
     """One method of the table (see the module docstring for the fields)."""
 

@@ -28,11 +28,12 @@ from __future__ import annotations
 
 import json
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from functools import lru_cache
 from pathlib import Path
 from typing import Iterator, Mapping, Optional, Sequence
 
+from deckward.grammar.records import record
 from . import elements
 from .geometry import BOND_TOLERANCE, union_find_root
 
@@ -66,7 +67,7 @@ class FrozenMap(Mapping):
         return repr(self._items)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Measured:
     """A measured energy in eV with its uncertainty (None when the source
     gives none) and a short citation.  ``from_memory`` marks a value not yet
@@ -80,7 +81,7 @@ class Measured:
     note: str = ""
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Species:
     """One tabulated neutral species and what is measured about it and its ions.
 

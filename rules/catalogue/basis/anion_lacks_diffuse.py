@@ -18,11 +18,12 @@ the criterion, a warning that points to ``deckward probe``.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Optional
 
 from deckward.grammar import model as m
 from deckward.grammar.findings import Applicability, Related, RuleInfo, Severity
+from deckward.grammar.records import record
 
 from deckward.rules.knowledge import basis_families, basis_library, deck_facts, methods
 from . import diffuse
@@ -120,7 +121,7 @@ _LETTERS = "spdfg"
 MARGIN = 1.2  # exponent / threshold, at the strongest binding in practice, beyond which it is an error (calibrated, docs/diffuse-criterion.md)
 
 
-@dataclass
+@record
 class _Use:
     """One basis word that leaves some element of some checked state
     without functions that reach far enough."""

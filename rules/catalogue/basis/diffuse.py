@@ -33,8 +33,9 @@ from __future__ import annotations
 
 import functools
 import math
-from dataclasses import dataclass
 from typing import Optional, Sequence
+
+from deckward.grammar.records import record
 
 __all__ = [
     "CRITERION_REFERENCES",
@@ -109,7 +110,7 @@ IONIZATION_ENERGY_EV: dict[str, float] = {
 _PERIOD_ENDS = (2, 10, 18, 36, 54, 86, 118)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class DiffuseVerdict:
     """Outcome of the diffuse test for one element of one basis set.
 

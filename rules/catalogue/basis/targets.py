@@ -10,10 +10,10 @@ that the rule registry does not take it for a rule.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Iterable, Optional
 
 from deckward.grammar import model as m
+from deckward.grammar.records import record
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 from deckward.rules.knowledge import deck_facts
@@ -28,7 +28,7 @@ QUANTITY_WORDS = {
 }
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Purpose:
     """Why a state is computed: a derive's quantity, or only the study goal."""
 

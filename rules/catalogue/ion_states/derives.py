@@ -15,10 +15,10 @@ both, the state written first has the charge that is higher by one.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Iterable, Optional
 
 from deckward.grammar import model as m
+from deckward.grammar.records import record
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 from deckward.rules.knowledge.deck_facts import (
@@ -39,7 +39,7 @@ KIND_QUANTITIES = (IE, EA, "fundamental_gap", "excitation_energy")
 QUANTITY_NOUN = dict(NOUN, fundamental_gap="fundamental gap", excitation_energy="excitation energy")
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class IonDerive:
     """A derive that reports an IE or an EA, with what its expression is."""
 
@@ -139,7 +139,7 @@ def partner(ws: Workspace, rs: ResolvedState, step: int) -> Optional[ResolvedSta
     return min(candidates, key=lambda o: (o.optimize != rs.optimize, level_key(ws, o) != mine))
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class Pair:
     """The neutral and ion state an IE/EA needs (``ion`` None: missing)."""
 
@@ -170,7 +170,7 @@ def orbital_pair(ws: Workspace, d: IonDerive) -> Optional[Pair]:
     return Pair(s, partner(ws, s, STEP[d.quantity]), d.quantity)
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class LevelKey:
     """What a state is computed at, normalised for comparison: method name
     from the method table (words as written, lower case, when unknown),

@@ -3,11 +3,11 @@ an energy difference, swapping the operands of a reversed one, and adding a
 missing ion state as a complete block in the neutral's own layout."""
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Iterable, Optional
 
 from deckward.grammar import model as m
 from deckward.grammar.findings import Fix, Span, TextEdit
+from deckward.grammar.records import record
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 from deckward.rules.knowledge.deck_facts import EnergyDifference, lowest_multiplicity, nuclear_charge
@@ -61,7 +61,7 @@ def free_name(ws: Workspace, base: str, neutral: str, taken: Iterable[str] = ())
     return f"{neutral}_{base}{n}"
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class IonState:
     """A state to add: its name, charge, multiplicity and the insertion."""
 

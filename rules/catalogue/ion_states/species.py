@@ -9,10 +9,10 @@ belongs to the species CN whatever its charge.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Optional
 
 from deckward.grammar import model as m
+from deckward.grammar.records import record
 from deckward.grammar.resolve import ResolvedState, Workspace
 
 from deckward.rules.knowledge import reference_data
@@ -41,7 +41,7 @@ def _states_of(ws: Workspace, derive: m.Derive) -> list[ResolvedState]:
     return out
 
 
-@dataclass(frozen=True)
+@record(frozen=True)
 class UnboundAnion:
     """An electron affinity, or an anion, of a species whose anion is not bound."""
 
