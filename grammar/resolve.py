@@ -8,7 +8,6 @@ every deck that uses them.
 """
 from __future__ import annotations
 
-import hashlib
 import os
 import re
 from dataclasses import field
@@ -20,6 +19,14 @@ from .findings import Finding, Related, Severity, Span
 from .records import record
 from .safe_open import MAX_FILE_BYTES, path_problem, read_regular
 from .text_index import LineIndex
+
+try:  # the standard library's own SHA-256: hashlib would load OpenSSL (about 2 ms of every start)
+    from _sha2 import sha256 as _sha256  # Python 3.12+
+except ImportError:
+    try:
+        from _sha256 import sha256 as _sha256  # Python 3.10, 3.11
+    except ImportError:
+        from hashlib import sha256 as _sha256
 
 # `use` chains deeper than this, or more files than this in one workspace,
 # are not loaded (a located finding says so): no real set-up comes near.
@@ -73,7 +80,7 @@ class Loader:
 
     def parse_text(self, path: str, text: str) -> ParsedFile:
         key = os.path.abspath(path)
-        digest = hashlib.sha256(text.encode("utf-8", "surrogatepass")).hexdigest()
+        digest = _sha256(text.encode("utf-8", "surrogatepass")).hexdigest()
         cached = self._files.get(key)
         if cached is not None and cached.digest == digest and cached.path == path:
             return cached
@@ -458,7 +465,7 @@ def _with_geometry_files(pf: ParsedFile, loader: Loader, root_dir: str, findings
         if bad is not None:
             found.insert(0, bad)
         findings.extend(found)
-        read.append((target, hashlib.sha256(text.encode("utf-8", "surrogatepass")).hexdigest()))
+        read.append((target, _sha256(text.encode("utf-8", "surrogatepass")).hexdigest()))
         geometries.append(replace(g, atoms=atoms, file_path=target))
     deck = replace(pf.deck, geometries=tuple(geometries))
     return ParsedFile(pf.path, deck, pf.findings, pf.index, pf.digest)

@@ -57,7 +57,8 @@ ALLOWED_THIRD_PARTY: set = set()
 # Standard-library modules that would mean a heavier machinery got in
 # (Lark's own package imports tempfile, logging, pickle and threading).
 FORBIDDEN_STDLIB = {"concurrent", "multiprocessing", "asyncio", "sqlite3", "importlib.resources", "subprocess",
-                    "gzip", "zipfile", "tempfile", "logging", "pickle", "threading"}
+                    "gzip", "zipfile", "tempfile", "logging", "pickle", "threading", "shutil", "lzma", "bz2",
+                    "hashlib"}
 
 
 def _imported(args, cwd):
