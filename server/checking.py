@@ -6,10 +6,11 @@ language server calls the same engine on its open documents.
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Iterable, Optional
 
 from deckward.grammar.findings import Finding, Severity
+from deckward.grammar.records import record
 from deckward.grammar.resolve import Loader, shown
 from deckward.rules.engine.config import Config
 from deckward.rules.engine.checker import dedupe
@@ -22,7 +23,7 @@ class UsageError(Exception):
     """A problem with the command line itself (exit status 2)."""
 
 
-@dataclass
+@record
 class CheckResult:
     """The decks checked and their findings, ready for a report."""
 

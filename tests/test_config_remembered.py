@@ -6,8 +6,8 @@ import sys
 import pytest
 
 from deckward.grammar.findings import Severity
-from deckward.rules import config as config_mod
-from deckward.rules.config import load_config
+from deckward.rules.engine import config as config_mod
+from deckward.rules.engine.config import load_config
 
 TEXT = "rules:\n  koopmans-ip: error\n  unused-definition: off\nexclude:\n  - \"scratch/**\"\nprobe:\n  time_limit_s: 120\n"
 KNOWN = {"koopmans-ip", "unused-definition"}

@@ -41,6 +41,8 @@ CONFIG_RULE = RuleInfo(
 
 @record
 class Config:
+    """A read ``deckward.yaml`` (or the defaults): severities, excludes, limits, clusters."""
+
     path: Optional[str] = None
     root: Optional[str] = None  # the folder holding the file: the workspace root
     severities: dict[str, Optional[Severity]] = field(default_factory=dict)  # None: off

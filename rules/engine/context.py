@@ -10,6 +10,8 @@ from deckward.grammar.resolve import Workspace
 
 @record
 class Context:
+    """What a rule's check is given: the workspace and the rule's own ``RuleInfo``."""
+
     workspace: Workspace
     info: RuleInfo
 

@@ -24,6 +24,8 @@ from deckward.rules import catalogue
 
 @record(frozen=True)
 class Rule:
+    """A rule of the catalogue: its ``RuleInfo`` and its check (None when reported elsewhere)."""
+
     info: RuleInfo
     check: Optional[Callable[..., Iterable[Finding]]]  # None: reported by the grammar or a probe
     module: str = ""

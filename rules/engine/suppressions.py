@@ -43,6 +43,8 @@ SUPPRESSION_RULES = (
 
 @record(frozen=True)
 class Suppression:
+    """One ``# allow:`` comment: the rule ids, the reason and the line it covers."""
+
     ids: tuple[str, ...]
     reason: Optional[str]
     span: Span  # the comment

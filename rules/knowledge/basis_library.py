@@ -167,6 +167,8 @@ def _info_from_header(name: str, header: dict, source: str = "pyscf", extra_elem
 
 @record(frozen=True)
 class _PopleSuffix:
+    """A Pople basis word split into its base set and polarisation tokens."""
+
     base: str  # canonical name of the base set, e.g. "6-311++g"
     prefix: str  # polarisation file family, e.g. "6-311g"
     heavy: tuple[str, ...]  # tokens for atoms other than H and He
