@@ -123,3 +123,21 @@ def test_crlf_positions_match_lf():
     lf = "geometry cn {\n  C 0 0 0\n}\nlevel hf { method hf }\n"
     crlf = lf.replace("\n", "\r\n")
     assert syntax(lf) == syntax(crlf)
+
+
+def test_a_word_with_an_underscore_is_one_unexpected_word():
+    # after `f` the parser wants `=`: the word that follows is reported whole,
+    # and its fix then gives `frozen_core`, not `rozenfrozen_core`
+    text = "level lv { method = hf  basis = cc-pvdz  f{rozen_core = true }\n"
+    assert syntax(text) == [
+        ("syntax-error", 1, 10, "the level block opened on line 1 is not closed: expected `}` before the end of "
+                                "the file"),
+        ("syntax-error", 1, 43, "expected `=` but found `{`"),
+        ("unknown-key", 1, 44, "`rozen_core` is not a key of a level block (keys: method, basis, reference, "
+                               "frozen_core); did you mean `frozen_core`?"),
+    ]
+    assert syntax("level lv { x rozen_core = true }\n") == [
+        ("syntax-error", 1, 12, "expected `=` and a value after `x`"),
+        ("unknown-key", 1, 14, "`rozen_core` is not a key of a level block (keys: method, basis, reference, "
+                               "frozen_core); did you mean `frozen_core`?"),
+    ]
