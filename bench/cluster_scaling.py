@@ -114,17 +114,17 @@ def main() -> None:
         tiny_here = [timed(tiny_ws, folder)[0] for _ in range(args.repeats)]
         short_here = [timed(short_ws, folder)[0] for _ in range(args.repeats)]
         long_here = [timed(long_ws, folder, per_state=True) for _ in range(args.repeats)]
-    best_one, best_two, best_here = (min(runs, key=lambda x: x[0]) for runs in (t_one, t_two, long_here))
     n = N_STATES
     short_state = min(short_here) / n
     overhead = (min(tiny_dask) - min(tiny_here)) / n
-    print(f"cores: {len(os.sched_getaffinity(0))}; load average: {os.getloadavg()[0]:.2f}")
-    for label, best in (("this process", best_here), ("one worker", best_one), ("two workers", best_two)):
-        runs = {"this process": long_here, "one worker": t_one, "two workers": t_two}[label]
+    print(f"cores: {len(os.sched_getaffinity(0))}; load average at the end: {os.getloadavg()[0]:.2f}")
+    for label, runs in (("this process", long_here), ("one worker", t_one), ("two workers", t_two)):
+        best = min(runs, key=lambda x: x[0])
         every = ", ".join(f"{t:.2f}" for t, _ in runs)
         print(f"{n} states UHF/cc-pVTZ on NO2, {label}: {best[0]:.2f} s (runs {every}); per state {best[1]}")
+    best_one, best_two = min(t[0] for t in t_one), min(t[0] for t in t_two)
     pairs = [a[0] / b[0] for a, b in zip(t_one, t_two)]  # runs next to each other in time
-    print(f"speed-up two workers / one: {best_one[0] / best_two[0]:.2f} of the best runs, "
+    print(f"speed-up two workers / one: {best_one / best_two:.2f} of the best runs, "
           f"{statistics.median(pairs):.2f} median of the pairs ({', '.join(f'{r:.2f}' for r in pairs)}); ideal 2.00")
     print(f"short state (UHF/cc-pVDZ on NO2) in this process: {short_state * 1000:.0f} ms")
     print(f"{n} trivial states (UHF/STO-3G on H): one worker {min(tiny_dask) * 1000:.0f} ms, "
