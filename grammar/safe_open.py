@@ -84,3 +84,24 @@ def read_regular(path: str, limit: int = MAX_FILE_BYTES) -> bytes:
         return b"".join(chunks)
     finally:
         os.close(fd)
+
+
+def resolved_path(path: str, real_folders: dict[str, str]) -> str:
+    """``os.path.realpath(path)``, asking the system about each folder of a
+    run once: ``real_folders`` remembers folder -> its real path, so a file
+    that is not itself a link costs one ``lstat`` instead of one per folder
+    of its path (thousands of decks in a few folders).  The memo belongs to
+    one run; a long-lived caller (the editor) must not keep it."""
+    absolute = os.path.abspath(path)
+    folder, name = os.path.split(absolute)
+    if not name or name in (".", ".."):
+        return os.path.realpath(absolute)
+    real_folder = real_folders.get(folder)
+    if real_folder is None:
+        real_folder = real_folders[folder] = os.path.realpath(folder)
+    try:
+        if stat.S_ISLNK(os.lstat(absolute).st_mode):
+            return os.path.realpath(absolute)
+    except (OSError, ValueError):
+        pass  # a file that does not exist (or cannot): realpath keeps its name too
+    return os.path.join(real_folder, name)

@@ -33,6 +33,7 @@ from typing import Any, Iterable, Optional
 
 from deckward import __version__
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
+from deckward.grammar.safe_open import resolved_path
 
 from .scale_options import default_cache_dir  # noqa: F401  (re-exported)
 
@@ -281,6 +282,7 @@ class FindingsCache:
         self.write_errors = 0
         self._digests: dict[str, Optional[str]] = {}
         self._reals: dict[str, str] = {}
+        self._real_folders: dict[str, str] = {}
 
     def digest(self, path: str) -> Optional[str]:
         """File digests are remembered for one run: a file used by many
@@ -296,7 +298,7 @@ class FindingsCache:
         key = os.path.abspath(path)
         found = self._reals.get(key)
         if found is None:
-            found = self._reals[key] = os.path.realpath(path)
+            found = self._reals[key] = resolved_path(key, self._real_folders)
         return found
 
     def _entry_path(self, key: str) -> str:
@@ -360,6 +362,7 @@ class FindingsCache:
     def forget_digests(self) -> None:
         self._digests.clear()
         self._reals.clear()
+        self._real_folders.clear()
 
     def clear(self) -> int:
         """Delete every entry (and nothing else: the folder may be one a

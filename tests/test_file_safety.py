@@ -246,3 +246,20 @@ def test_format_never_writes_through_a_link_out_of_the_workspace(outside, capsys
         f"deckward: skipped {ws / 'linked.deck'}: it is a link to a file outside the workspace",
         f"{ws / 'linked.deck'}: not written: it is a link to {target}, outside the workspace {ws}",
     ]
+
+
+def test_resolved_path_is_realpath_with_folders_remembered(tmp_path):
+    from deckward.grammar.safe_open import resolved_path
+
+    (tmp_path / "real").mkdir()
+    (tmp_path / "real" / "a.deck").write_text("")
+    (tmp_path / "elsewhere").mkdir()
+    (tmp_path / "elsewhere" / "b.deck").write_text("")
+    os.symlink(tmp_path / "real", tmp_path / "linked_folder")
+    os.symlink(tmp_path / "elsewhere" / "b.deck", tmp_path / "real" / "link.deck")
+    memo: dict[str, str] = {}
+    for rel in ("real/a.deck", "real/link.deck", "linked_folder/a.deck", "linked_folder/link.deck",
+                "real/missing.deck", "real/../real/a.deck", "linked_folder"):
+        path = str(tmp_path / rel)
+        assert resolved_path(path, memo) == os.path.realpath(path), rel
+    assert memo[str(tmp_path / "linked_folder")] == os.path.realpath(tmp_path / "real")

@@ -28,6 +28,7 @@ from typing import Iterable, Mapping, Optional
 
 from deckward.grammar.findings import Finding
 from deckward.grammar.resolve import Loader, Workspace, inside_root, resolve
+from deckward.grammar.safe_open import resolved_path
 
 from .config import CONFIG_NAME, Config, load_config
 from .checker import check_workspace, known_rule_ids
@@ -86,6 +87,7 @@ class Project:
         self.live = live
         self._config: Optional[Config] = None
         self._config_key: Optional[tuple] = None
+        self._real_folders: dict[str, str] = {}  # for resolved_path (not when live)
 
     @property
     def config(self) -> Config:
@@ -103,7 +105,8 @@ class Project:
         self._config = None
 
     def contains(self, path: str) -> bool:
-        return inside_root(os.path.realpath(path), self.root)
+        real = resolved_path(path, self._real_folders) if not self.live else os.path.realpath(path)
+        return inside_root(real, self.root)
 
     def resolve(self, path: str, text: Optional[str] = None) -> Workspace:
         """``path`` (or ``text`` as that file) resolved in this workspace;
