@@ -19,6 +19,8 @@ import os
 import sys
 import zlib
 
+from deckward import __version__
+
 from .parser import _cache_dir
 
 _FORMAT = 1
@@ -26,8 +28,8 @@ _FORMAT = 1
 
 def _stamp(source: str):
     st = os.stat(source)
-    return (_FORMAT, sys.implementation.cache_tag, marshal.version, os.path.abspath(source), st.st_size,
-            st.st_mtime_ns)
+    return (_FORMAT, __version__, sys.implementation.cache_tag, marshal.version, os.path.abspath(source),
+            st.st_size, st.st_mtime_ns)
 
 
 def _entry(source: str, part: str) -> str:
@@ -86,4 +88,5 @@ def remember(source: str, part: str, text: str, value) -> None:
 
 
 def _text_stamp(text: str):
-    return (_FORMAT, sys.implementation.cache_tag, marshal.version, text)
+    # the deckward version too: what a clean read of the text yields may change with a release
+    return (_FORMAT, __version__, sys.implementation.cache_tag, marshal.version, text)

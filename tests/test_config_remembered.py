@@ -65,3 +65,21 @@ def test_the_remembered_entry_is_plain_data(cache):
     assert config_mod.derived_cache.recall(str(path), "config", TEXT) == {
         "severities": {"koopmans-ip": "error", "unused-definition": None}, "exclude": ["scratch/**"],
         "probe": {"time_limit_s": 120.0}, "run": {}}
+
+
+@pytest.mark.parametrize("stored", [42, {"severities": 7}, {"severities": {"koopmans-ip": "loud"}}, {}])
+def test_a_remembered_entry_of_another_shape_means_reading_the_file(cache, stored):
+    path = cache / "deckward.yaml"
+    path.write_text(TEXT)
+    config_mod.derived_cache.remember(str(path), "config", TEXT, stored)
+    cfg = load_config(str(path), KNOWN)
+    assert cfg.severities == {"koopmans-ip": Severity.ERROR, "unused-definition": None}
+    assert cfg.exclude == ["scratch/**"] and not cfg.findings
+
+
+def test_a_new_release_reads_the_file_again(cache, monkeypatch):
+    path = cache / "deckward.yaml"
+    path.write_text(TEXT)
+    load_config(str(path), KNOWN)
+    monkeypatch.setattr(config_mod.derived_cache, "__version__", "999.0")
+    assert config_mod.derived_cache.recall(str(path), "config", TEXT) is None

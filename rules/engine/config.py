@@ -83,8 +83,12 @@ def load_config(path: Optional[str], known_rules: set[str]) -> Config:
                                     LineIndex("", path).span(0, 0)))
         return cfg
     remembered = derived_cache.recall(path, "config", text)
-    if remembered is not None and all(rid in known_rules for rid in remembered["severities"]):
-        return _apply(cfg, remembered)
+    if remembered is not None:
+        try:
+            if all(rid in known_rules for rid in remembered["severities"]):
+                return _apply(cfg, remembered)
+        except (KeyError, TypeError, ValueError, AttributeError):  # an entry of another shape: read the file
+            cfg = Config(path=path, root=os.path.dirname(os.path.abspath(path)))
     import yaml  # only when there is a file to read: keeps start-up light
 
     index = LineIndex(text, path)
