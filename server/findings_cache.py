@@ -49,7 +49,7 @@ def span_to_list(s: Span) -> list:
 
 
 def span_from_list(v: list) -> Span:
-    return Span(str(v[0]), *(int(x) for x in v[1:7]))
+    return Span(str(v[0]), int(v[1]), int(v[2]), int(v[3]), int(v[4]), int(v[5]), int(v[6]))
 
 
 def finding_to_dict(f: Finding) -> dict:
@@ -98,12 +98,11 @@ class BadEntry(ValueError):
     """An entry that must not be served (its reason is the message)."""
 
 
-def _is_int(v: Any) -> bool:
-    return isinstance(v, int) and not isinstance(v, bool)
-
 
 def _check_span(v: Any, where: str) -> None:
-    if not (isinstance(v, list) and len(v) == 7 and isinstance(v[0], str) and all(_is_int(x) for x in v[1:])):
+    # type(x) is int: JSON gives exact ints, and a bool is not a position
+    if not (type(v) is list and len(v) == 7 and type(v[0]) is str and type(v[1]) is int and type(v[2]) is int
+            and type(v[3]) is int and type(v[4]) is int and type(v[5]) is int and type(v[6]) is int):
         raise BadEntry(f"{where}: a span is [path, start, end, line, column, end_line, end_column]")
     _, start, end, line, column, end_line, end_column = v
     if not (0 <= start <= end and 1 <= line <= end_line and column >= 1 and end_column >= 1):
@@ -283,6 +282,7 @@ class FindingsCache:
         self._digests: dict[str, Optional[str]] = {}
         self._reals: dict[str, str] = {}
         self._real_folders: dict[str, str] = {}
+        self.last_deps: list[str] = []  # the files the entry ``get`` last served depends on
 
     def digest(self, path: str) -> Optional[str]:
         """File digests are remembered for one run: a file used by many
@@ -320,6 +320,7 @@ class FindingsCache:
                     self.misses += 1
                     return None
             findings = [finding_from_dict(d) for d in entry["findings"]]
+            self.last_deps = [dep for dep, _, _ in entry["deps"]]
         except (OSError, ValueError, KeyError, TypeError, IndexError, RecursionError):
             self.misses += 1
             return None
@@ -387,4 +388,26 @@ class FindingsCache:
                 os.rmdir(sub)
             except OSError:
                 pass  # something else lives there: leave it
+        removed += _clear_summaries(os.path.join(self.folder, "summaries"))
         return removed
+
+
+def _clear_summaries(folder: str) -> int:
+    """Delete the run summaries (``run_summary``: ``summaries/<32 hex>.json``)."""
+    removed = 0
+    try:
+        names = os.listdir(folder)
+    except OSError:
+        return 0
+    for name in names:
+        if name.endswith(".json") and len(name) == 37 and _HEX.fullmatch(name[:-5]):
+            try:
+                os.unlink(os.path.join(folder, name))
+                removed += 1
+            except OSError:
+                pass
+    try:
+        os.rmdir(folder)
+    except OSError:
+        pass
+    return removed

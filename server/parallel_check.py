@@ -63,13 +63,15 @@ class CheckStats:
     cache_write_errors: int = 0
     workers: int = 1
     notes: list[str] = field(default_factory=list)
+    from_summary: bool = False  # served whole from the run summary (nothing hashed or read per deck)
 
     def plus(self, other: "CheckStats") -> "CheckStats":
         """Both runs' counts together (decks of two projects)."""
         return CheckStats(self.decks + other.decks, self.checked + other.checked,
                           self.cache_hits + other.cache_hits, self.cache_misses + other.cache_misses,
                           self.cache_write_errors + other.cache_write_errors,
-                          max(self.workers, other.workers), self.notes + other.notes)
+                          max(self.workers, other.workers), self.notes + other.notes,
+                          self.from_summary and other.from_summary)
 
 
 def used_paths(ws: Workspace) -> list[str]:
@@ -133,12 +135,17 @@ class _Checker:
             return None
         return entry_key(task.path, task.root, digest, self.config_print, self.probe, self.cache.real)
 
-    def lookup(self, key: Optional[str]) -> Optional[list[Finding]]:
-        return self.cache.get(key) if self.cache is not None and key is not None else None
+    def lookup(self, key: Optional[str]) -> Optional[tuple[list[Finding], list[str]]]:
+        """(findings, the files they depend on) of a cached deck, else None."""
+        if self.cache is None or key is None:
+            return None
+        found = self.cache.get(key)
+        return None if found is None else (found, self.cache.last_deps)
 
     def run(self, jobs: list[tuple[Task, Optional[str]]], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
         """Check each (task, cache key) and store the findings under the key:
-        ``("ok", findings)`` or ``("unreadable", reason)`` per task, in order."""
+        ``("ok", findings, files depended on)`` or ``("unreadable", reason,
+        None)`` per task, in order."""
         own_loader = loader is None
         loader = loader or Loader()
         shared: set[str] = set()
@@ -147,14 +154,14 @@ class _Checker:
             try:
                 findings, deps, ws = check_one(task, loader, self.config, self.probe, self.progress)
             except DeckUnreadable as e:
-                out.append(("unreadable", e.reason))
+                out.append(("unreadable", e.reason, None))
                 continue
             if own_loader:
                 release_unshared(loader, ws, shared)
             self.checked += 1
             if key is not None and self.cache is not None:
                 self.cache.put(key, deps, findings)
-            out.append(("ok", findings))
+            out.append(("ok", findings, deps))
         return out
 
     def counters(self) -> tuple[int, int, int, int]:
@@ -216,13 +223,20 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
         jobs = default_jobs()
     local = _Checker(config, probe, cache_dir)
     local.progress = progress
-    results: list[Optional[tuple[str, object]]] = [None] * len(tasks)
+    summary = _summary_of(tasks, local, cache_dir)
+    if summary is not None:
+        served = summary.recall()
+        if served is not None:
+            stats.cache_hits = len(tasks)
+            stats.from_summary = True
+            return [f for per in served for f in per], stats
+    results: list[Optional[tuple]] = [None] * len(tasks)
     todo: list[tuple[int, Task, Optional[str]]] = []
     for i, task in enumerate(tasks):
         key = local.key(task)
         found = local.lookup(key)
         if found is not None:
-            results[i] = ("ok", found)
+            results[i] = ("ok", *found)
         else:
             todo.append((i, task, key))
     counters = []
@@ -253,8 +267,39 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
         stats.notes.append(f"note: the findings cache in {cache_dir} could not be written "
                            f"({stats.cache_write_errors} entries); checking went on without it")
     findings: list[Finding] = []
-    for task, (status, value) in zip(tasks, results):  # type: ignore[misc]
+    for task, (status, value, _) in zip(tasks, results):  # type: ignore[misc]
         if status == "unreadable":
             raise DeckUnreadable(task.path, str(value))
         findings.extend(value)  # type: ignore[arg-type]
+    if summary is not None and not stats.cache_write_errors:
+        summary.store([r[1] for r in results], [p for r in results for p in r[2]])  # type: ignore[index]
     return findings, stats
+
+
+class _Summary:
+    """The run summary (``run_summary``) of one project's decks."""
+
+    def __init__(self, tasks: list[Task], path: str) -> None:
+        from . import run_summary
+
+        self.module = run_summary
+        self.started_ns = run_summary.now_ns()
+        self.tasks = [(t.path, t.root) for t in tasks]
+        self.path = path
+
+    def recall(self):
+        return self.module.recall(self.path, self.tasks)
+
+    def store(self, findings: list[list[Finding]], depended_on: list[str]) -> None:
+        files = [p for p, _ in self.tasks] + depended_on
+        self.module.store(self.path, self.tasks, findings, files, self.started_ns)
+
+
+def _summary_of(tasks: list[Task], checker: "_Checker", cache_dir: Optional[str]) -> Optional[_Summary]:
+    """The summary of these decks when there is a cache and they share one
+    root (one project), else None."""
+    if not cache_dir or not tasks or any(t.root != tasks[0].root for t in tasks):
+        return None
+    from .run_summary import summary_path
+
+    return _Summary(tasks, summary_path(cache_dir, tasks[0].root, checker.config_print, checker.probe))
