@@ -22,6 +22,7 @@ import zlib
 from deckward import __version__
 
 from .parser import _cache_dir
+from .safe_open import replace_file
 
 _FORMAT = 1
 
@@ -59,17 +60,10 @@ def load(source: str, part: str, build):
 
 
 def _write(path: str, entry) -> None:
-    tmp = f"{path}.{os.getpid()}.tmp"
     try:
-        os.makedirs(os.path.dirname(path), exist_ok=True)
-        with open(tmp, "wb") as f:
-            f.write(marshal.dumps(entry))
-        os.replace(tmp, path)
+        replace_file(path, marshal.dumps(entry))
     except (OSError, ValueError):
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
+        pass  # not remembered: the next start builds it again
 
 
 def recall(source: str, part: str, text: str):

@@ -12,6 +12,7 @@ it into one located finding or one line.
 from __future__ import annotations
 
 import errno
+import itertools
 import os
 import stat
 
@@ -105,3 +106,30 @@ def resolved_path(path: str, real_folders: dict[str, str]) -> str:
     except (OSError, ValueError):
         pass  # a file that does not exist (or cannot): realpath keeps its name too
     return os.path.join(real_folder, name)
+
+
+_TEMPORARIES = itertools.count()
+
+
+def replace_file(path: str, data: bytes) -> None:
+    """Write ``data`` as the file ``path`` atomically, for deckward's own
+    cache files: to a temporary name of this process in the same folder,
+    then renamed over ``path``, so a reader (a parallel worker, a second CI
+    job sharing the cache) sees the old file, the new one or none, never
+    half of one.  Raises OSError; the temporary file never stays behind.
+    (A user's deck is written by ``deckward.server.atomic_write``, which
+    also keeps its mode and refuses a file changed meanwhile.)"""
+    folder = os.path.dirname(path) or "."
+    os.makedirs(folder, exist_ok=True)
+    tmp = os.path.join(folder, f".{os.path.basename(path)}.{os.getpid()}.{next(_TEMPORARIES)}.tmp")
+    try:
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
+        with os.fdopen(fd, "wb") as f:
+            f.write(data)
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise

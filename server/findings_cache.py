@@ -33,7 +33,7 @@ from typing import Any, Iterable, Optional
 
 from deckward import __version__
 from deckward.grammar.findings import Applicability, Finding, Fix, Related, Severity, Span, TextEdit
-from deckward.grammar.safe_open import resolved_path
+from deckward.grammar.safe_open import replace_file, resolved_path
 
 from .scale_options import default_cache_dir  # noqa: F401  (re-exported)
 
@@ -330,8 +330,6 @@ class FindingsCache:
     def put(self, key: str, deps: Iterable[str], findings: Iterable[Finding]) -> None:
         """Store an entry atomically; a cache that cannot be written is
         counted and otherwise ignored (checking must not fail because of it)."""
-        import tempfile  # only a run that writes entries pays for it
-
         try:
             dep_rows = [[d, self.real(d), self.digest(d)] for d in deps]
         except (OSError, ValueError):  # a `use` path no file can have (a NUL byte): not cacheable
@@ -342,23 +340,10 @@ class FindingsCache:
         entry = {"format": FORMAT, "key": key, "deps": dep_rows, "findings": rows,
                  "checksum": entry_checksum(key, dep_rows, rows)}
         data = json.dumps(entry, ensure_ascii=False, separators=(",", ":")).encode("utf-8", "surrogatepass")
-        target = self._entry_path(key)
-        tmp = None
         try:
-            os.makedirs(os.path.dirname(target), exist_ok=True)
-            fd, tmp = tempfile.mkstemp(dir=os.path.dirname(target), prefix=".", suffix=".tmp")
-            with os.fdopen(fd, "wb") as f:
-                f.write(data)
-            os.replace(tmp, target)
-            tmp = None
+            replace_file(self._entry_path(key), data)
         except OSError:
             self.write_errors += 1
-        finally:
-            if tmp is not None:
-                try:
-                    os.unlink(tmp)
-                except OSError:
-                    pass
 
     def forget_digests(self) -> None:
         self._digests.clear()

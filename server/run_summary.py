@@ -33,6 +33,7 @@ import time
 from typing import Optional
 
 from deckward.grammar.findings import Finding
+from deckward.grammar.safe_open import replace_file
 
 from .findings_cache import BadEntry, _check_finding, code_fingerprint, finding_from_dict, finding_to_dict
 
@@ -117,26 +118,11 @@ def store(path: str, tasks: list[tuple[str, str]], findings: list[list[Finding]]
     body = json.dumps({"format": FORMAT, "tasks": [list(t) for t in tasks], "files": rows,
                        "findings": [[finding_to_dict(f) for f in per] for per in findings]},
                       ensure_ascii=False, separators=(",", ":")).encode("utf-8", "surrogatepass")
-    data = hashlib.sha256(body).hexdigest().encode() + b"\n" + body
-    import tempfile  # only a run that writes pays for it
-
-    tmp = None
     try:
-        os.makedirs(os.path.dirname(path), exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=os.path.dirname(path), prefix=".", suffix=".tmp")
-        with os.fdopen(fd, "wb") as f:
-            f.write(data)
-        os.replace(tmp, path)
-        tmp = None
-        return True
+        replace_file(path, hashlib.sha256(body).hexdigest().encode() + b"\n" + body)
     except OSError:
         return False
-    finally:
-        if tmp is not None:
-            try:
-                os.unlink(tmp)
-            except OSError:
-                pass
+    return True
 
 
 def now_ns() -> int:

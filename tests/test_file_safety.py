@@ -263,3 +263,21 @@ def test_resolved_path_is_realpath_with_folders_remembered(tmp_path):
         path = str(tmp_path / rel)
         assert resolved_path(path, memo) == os.path.realpath(path), rel
     assert memo[str(tmp_path / "linked_folder")] == os.path.realpath(tmp_path / "real")
+
+
+def test_replace_file_writes_whole_files_and_leaves_no_temporary(tmp_path, monkeypatch):
+    from deckward.grammar import safe_open
+
+    target = tmp_path / "cache" / "entry.json"
+    safe_open.replace_file(str(target), b"first")
+    safe_open.replace_file(str(target), b"second")
+    assert target.read_bytes() == b"second"
+
+    def interrupted(src, dst):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(safe_open.os, "replace", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        safe_open.replace_file(str(target), b"third")
+    assert target.read_bytes() == b"second"
+    assert sorted(p.name for p in target.parent.iterdir()) == ["entry.json"]

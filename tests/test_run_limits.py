@@ -235,7 +235,7 @@ def test_a_full_disk_leaves_the_results_printed_and_a_note(tmp_path, capsys, mon
     def full(*a, **k):
         raise OSError(errno.ENOSPC, "No space left on device")
 
-    monkeypatch.setattr(cache_module.json, "dump", full)
+    monkeypatch.setattr(cache_module, "replace_file", full)  # the write of the entry
     deck = write_deck(tmp_path, H2)
     status, out, err = run_cli("run", "-q", "--cache-dir", str(tmp_path / "c"), deck, capsys=capsys)
     assert status == 0 and "converged" in out

@@ -18,9 +18,10 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from functools import lru_cache
 from typing import Optional
+
+from deckward.grammar.safe_open import replace_file
 
 from . import cache_entry
 from .plan import StatePlan, content_hash
@@ -105,22 +106,10 @@ class RunCache:
     def put(self, key: str, result: dict) -> None:
         if not self.enabled or result.get("status") != "ok" or not cache_entry.finite_result(result):
             return
-        stored = dict(result, cached=False)
-        tmp = None
-        try:
-            os.makedirs(self.folder, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(dir=self.folder, prefix=".tmp-", suffix=".json")
-            with os.fdopen(fd, "w", encoding="utf-8") as f:
-                json.dump(stored, f)
-            os.replace(tmp, os.path.join(self.folder, key + ".json"))  # atomic: parallel runs never see half a file
-            tmp = None
+        data = json.dumps(dict(result, cached=False)).encode("utf-8")
+        try:  # atomic: parallel runs never see half a file
+            replace_file(os.path.join(self.folder, key + ".json"), data)
         except OSError as e:
             note = f"results were not stored in the run cache {self.folder}: {e.strerror or e}"
             if note not in self.notes:
                 self.notes.append(note)
-        finally:
-            if tmp is not None:
-                try:
-                    os.unlink(tmp)
-                except OSError:
-                    pass
