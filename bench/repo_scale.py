@@ -6,7 +6,8 @@ and measures in one run:
 
   - bare parse: read every file and run the bare Lark parse, one process;
   - cold check: `check_paths` with the default workers and an empty cache;
-  - warm check: the same again, every deck served from the cache;
+  - warm check: the same again, every deck served from the cache (the run
+    summary, when the decks were written more than two seconds before);
   - one file changed: one deck edited, the rest from the cache;
   - --jobs 1 and --jobs 2 without the cache (speed-up = time 1 / time 2).
 
@@ -133,7 +134,8 @@ def main() -> None:
         print(f"bare parse (read + Lark), 1 process:   {t_parse:7.2f} s  (1.00)")
         print(f"cold check, default jobs, empty cache: {t_cold:7.2f} s  ({t_cold / t_parse:.2f} x bare parse)")
         print(f"warm check, cache:                     {t_warm:7.2f} s  ({t_warm / t_parse:.3f} x bare parse; "
-              f"{s_warm.cache_hits} hits, {s_warm.checked} checked)")
+              f"{s_warm.cache_hits} hits, {s_warm.checked} checked"
+              f"{', from the run summary' if s_warm.from_summary else ''})")
         print(f"one file changed, cache:               {t_one:7.2f} s  ({t_one / t_parse:.3f} x bare parse; "
               f"{s_one.cache_hits} hits, {s_one.checked} checked)")
         print(f"--jobs 1, no cache:                    {t_j1:7.2f} s  ({t_j1 / t_parse:.2f} x bare parse)")
