@@ -282,7 +282,6 @@ class FindingsCache:
         self._digests: dict[str, Optional[str]] = {}
         self._reals: dict[str, str] = {}
         self._real_folders: dict[str, str] = {}
-        self.last_deps: list[str] = []  # the files the entry ``get`` last served depends on
 
     def digest(self, path: str) -> Optional[str]:
         """File digests are remembered for one run: a file used by many
@@ -307,6 +306,11 @@ class FindingsCache:
     def get(self, key: str) -> Optional[list[Finding]]:
         """The cached findings, or None (no entry, a used file changed or was
         re-pointed, or the entry is damaged, edited or of another shape)."""
+        found = self.entry(key)
+        return None if found is None else found[0]
+
+    def entry(self, key: str) -> Optional[tuple[list[Finding], list[str]]]:
+        """(cached findings, the files they depend on), or None as for ``get``."""
         try:
             with open(self._entry_path(key), "rb") as f:
                 data = f.read(MAX_ENTRY_BYTES + 1)
@@ -320,12 +324,11 @@ class FindingsCache:
                     self.misses += 1
                     return None
             findings = [finding_from_dict(d) for d in entry["findings"]]
-            self.last_deps = [dep for dep, _, _ in entry["deps"]]
         except (OSError, ValueError, KeyError, TypeError, IndexError, RecursionError):
             self.misses += 1
             return None
         self.hits += 1
-        return findings
+        return findings, [dep for dep, _, _ in entry["deps"]]
 
     def put(self, key: str, deps: Iterable[str], findings: Iterable[Finding]) -> None:
         """Store an entry atomically; a cache that cannot be written is

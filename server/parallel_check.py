@@ -29,7 +29,7 @@ from typing import Optional
 from deckward.grammar.findings import Finding
 from deckward.grammar.resolve import Loader, Workspace, resolve
 from deckward.rules.engine.config import Config
-from deckward.rules.engine.checker import check_workspace
+from deckward.rules.engine.project import check_resolved
 
 from .checking import release_unshared
 from .findings_cache import FindingsCache, config_fingerprint, entry_key
@@ -106,12 +106,7 @@ def check_one(task: Task, loader: Loader, config: Config, probe: bool,
         ws = resolve(task.path, loader, task.root)
     except OSError as e:
         raise DeckUnreadable(task.path, str(e.strerror or e))
-    extra: list[Finding] = []
-    if probe:
-        from deckward.rules.compute.probes import run_probes
-
-        extra = run_probes(ws, config, progress=progress)
-    return check_workspace(ws, config, extra=extra, probed=probe), used_paths(ws), ws
+    return check_resolved(ws, config, probe, progress), used_paths(ws), ws
 
 
 class _Checker:
@@ -139,8 +134,7 @@ class _Checker:
         """(findings, the files they depend on) of a cached deck, else None."""
         if self.cache is None or key is None:
             return None
-        found = self.cache.get(key)
-        return None if found is None else (found, self.cache.last_deps)
+        return self.cache.entry(key)
 
     def run(self, jobs: list[tuple[Task, Optional[str]]], loader: Optional[Loader] = None) -> list[tuple[str, object]]:
         """Check each (task, cache key) and store the findings under the key:
@@ -276,30 +270,11 @@ def check_tasks(tasks: list[Task], config: Config, probe: bool = False, jobs: in
     return findings, stats
 
 
-class _Summary:
-    """The run summary (``run_summary``) of one project's decks."""
-
-    def __init__(self, tasks: list[Task], path: str) -> None:
-        from . import run_summary
-
-        self.module = run_summary
-        self.started_ns = run_summary.now_ns()
-        self.tasks = [(t.path, t.root) for t in tasks]
-        self.path = path
-
-    def recall(self):
-        return self.module.recall(self.path, self.tasks)
-
-    def store(self, findings: list[list[Finding]], depended_on: list[str]) -> None:
-        files = [p for p, _ in self.tasks] + depended_on
-        self.module.store(self.path, self.tasks, findings, files, self.started_ns)
-
-
-def _summary_of(tasks: list[Task], checker: "_Checker", cache_dir: Optional[str]) -> Optional[_Summary]:
-    """The summary of these decks when there is a cache and they share one
-    root (one project), else None."""
+def _summary_of(tasks: list[Task], checker: "_Checker", cache_dir: Optional[str]):
+    """The run summary (``run_summary.RunSummary``) of these decks when there
+    is a cache and they share one root (one project), else None."""
     if not cache_dir or not tasks or any(t.root != tasks[0].root for t in tasks):
         return None
-    from .run_summary import summary_path
+    from .run_summary import RunSummary  # only a cached check pays for it
 
-    return _Summary(tasks, summary_path(cache_dir, tasks[0].root, checker.config_print, checker.probe))
+    return RunSummary(cache_dir, [(t.path, t.root) for t in tasks], checker.config_print, checker.probe)

@@ -125,5 +125,19 @@ def store(path: str, tasks: list[tuple[str, str]], findings: list[list[Finding]]
     return True
 
 
-def now_ns() -> int:
-    return time.time_ns()
+class RunSummary:
+    """The summary of one check of a project's decks (``tasks``: deck path
+    and root, in order): ``recall`` before checking, ``store`` after, with the
+    check's start time taken when the summary is made."""
+
+    def __init__(self, cache_dir: str, tasks: list[tuple[str, str]], config_print: str, probe: bool) -> None:
+        self.path = summary_path(cache_dir, tasks[0][1], config_print, probe)
+        self.tasks = tasks
+        self.started_ns = time.time_ns()
+
+    def recall(self) -> Optional[list[list[Finding]]]:
+        return recall(self.path, self.tasks)
+
+    def store(self, findings: list[list[Finding]], depended_on: list[str]) -> bool:
+        files = [p for p, _ in self.tasks] + list(depended_on)
+        return store(self.path, self.tasks, findings, files, self.started_ns)

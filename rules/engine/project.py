@@ -55,6 +55,18 @@ def _display_path(path: str) -> str:
     return path if rel.startswith("..") else rel
 
 
+def check_resolved(ws: Workspace, config: Config, probe: bool = False, progress=None) -> list[Finding]:
+    """Every finding of a resolved workspace under ``config``; with ``probe``
+    the PySCF probes run too (imported only then) and their findings go
+    through the same severities and suppressions."""
+    extra: list[Finding] = []
+    if probe:
+        from deckward.rules.compute.probes import run_probes
+
+        extra = run_probes(ws, config, progress=progress)
+    return check_workspace(ws, config, extra=extra, probed=probe)
+
+
 def _file_key(path: str) -> Optional[tuple]:
     try:
         st = os.stat(path)
@@ -120,12 +132,7 @@ class Project:
         severities and suppressions."""
         config = self.config
         ws = self.resolve(path, text)
-        extra: list[Finding] = []
-        if probe:
-            from deckward.rules.compute.probes import run_probes
-
-            extra = run_probes(ws, config, progress=progress)
-        return Analysis(ws, check_workspace(ws, config, extra=extra, probed=probe), config)
+        return Analysis(ws, check_resolved(ws, config, probe, progress), config)
 
     def __repr__(self) -> str:
         return f"Project({self.root!r}, config={self.config_path!r})"
@@ -191,14 +198,8 @@ class Projects:
                 return folder
         return os.path.dirname(absolute)
 
-    def projects(self) -> list[Project]:
-        """The projects met so far, in the order they were met."""
-        return list(self._projects.values())
-
     def reload(self) -> None:
         """Re-read every configuration on next use (``deckward.yaml`` changed)."""
-        for project in self._projects.values():
-            project.reload()
         self._projects.clear()
         self._found.clear()
         self._of_path.clear()
