@@ -37,7 +37,7 @@ from deckward.grammar.safe_open import replace_file, resolved_path
 
 from .scale_options import default_cache_dir  # noqa: F401  (re-exported)
 
-FORMAT = 2  # bump when the entry layout changes
+FORMAT = 3  # bump when the entry layout changes
 MAX_ENTRY_BYTES = 16 * 1024 * 1024  # an entry larger than this is not read
 MAX_EVIDENCE_DEPTH = 8  # nesting of an evidence value
 
@@ -60,7 +60,7 @@ def finding_to_dict(f: Finding) -> dict:
     if f.related:
         d["related"] = [[span_to_list(r.span), r.message] for r in f.related]
     if f.fixes:
-        d["fixes"] = [{"title": x.title, "applicability": x.applicability.value,
+        d["fixes"] = [{"title": x.title, "safety": x.applicability.value,
                        "edits": [[span_to_list(e.span), e.new_text] for e in x.edits]} for x in f.fixes]
     if f.evidence:
         d["evidence"] = [[k, v] for k, v in f.evidence]
@@ -84,7 +84,7 @@ def finding_from_dict(d: dict) -> Finding:
         related=tuple(Related(span_from_list(s), m) for s, m in d.get("related", ())),
         fixes=tuple(
             Fix(x["title"], tuple(TextEdit(span_from_list(s), t) for s, t in x["edits"]),
-                Applicability(x["applicability"]))
+                Applicability(x["safety"]))
             for x in d.get("fixes", ())
         ),
         evidence=tuple((k, _plain(v)) for k, v in d.get("evidence", ())),
@@ -145,8 +145,8 @@ def _check_finding(d: Any, where: str) -> None:
     if not isinstance(fixes, list):
         raise BadEntry(f"{where}: fixes is a list")
     for x in fixes:
-        if not (isinstance(x, dict) and set(x) == {"title", "applicability", "edits"} and isinstance(x["title"], str)
-                and x["applicability"] in _APPLICABILITIES and isinstance(x["edits"], list)):
+        if not (isinstance(x, dict) and set(x) == {"title", "safety", "edits"} and isinstance(x["title"], str)
+                and x["safety"] in _APPLICABILITIES and isinstance(x["edits"], list)):
             raise BadEntry(f"{where}: not a fix")
         for e in x["edits"]:
             if not (isinstance(e, list) and len(e) == 2 and isinstance(e[1], str)):

@@ -176,7 +176,7 @@ def finding_article(deck: DeckEntry, f: Finding, n: int, texts: dict, probed: bo
     for fix in f.fixes:
         diff = fix_diff(fix, texts)
         out.append(f'<h4><span class="fix-title">Suggested fix: {inline(fix.title)}</span> '
-                   f'<span class="applicability">({"safe" if fix.is_safe else "risky: changes what is computed"})</span></h4>')
+                   f'<span class="fix-safety">({"safe" if fix.is_safe else "risky: changes what is computed"})</span></h4>')
         out.append(diff_block(diff, deck.path) if diff else '<p class="small">The fix no longer applies to the file as it is now.</p>')
     if probed and f.evidence:
         out.append(evidence_table(f))
