@@ -17,6 +17,7 @@ from deckward.server import run_summary
 from deckward.server.checking import check_paths
 from deckward.server.findings_cache import FindingsCache, finding_to_dict
 
+# demo decks of the acceptor-screening scenario (CN at a demo bond length)
 USER = ('use "shared/levels.deck"\n'
         "geometry cn {\n  C 0 0 0\n  N 0 0 1.1718\n}\n"
         "state radical { geometry = cn level = shared_level charge = 0 multiplicity = 2 }\n")
